@@ -15,11 +15,16 @@ from .forecast import forecast_table, summarize
 
 @dataclass(frozen=True)
 class StudyResult:
-    """Summary (dict), forecast table and the displacement solution of one case."""
+    """Summary (dict), forecast table and the displacement solution of one case.
+
+    ``layers`` is None for a homogeneous case; for a layered case it holds the layered result
+    (see :mod:`flood.layers`).
+    """
 
     summary: dict
     table: pd.DataFrame
     solution: FrontSolution
+    layers: object = None
 
 
 def run_study(case, points: int = 400) -> StudyResult:
