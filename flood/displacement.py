@@ -84,14 +84,16 @@ def welge_tangent(relperm, mu_w, mu_o, swi, gravity=0.0):
     s = swi + t * span
     fw = fractional_flow(relperm, s, mu_w, mu_o, gravity)
     chord = (fw - fwi) / (s - swi)
-    k = np.argmax(chord, axis=0)
+    # Largest S whose chord slope ties the maximum (a linear fw is a contact: piston-like).
+    near_max = chord >= np.max(chord, axis=0) - 1e-12 * np.abs(np.max(chord, axis=0))
+    k = _SCAN_POINTS - 1 - np.argmax(near_max[::-1], axis=0)
     lo_t = np.where(k == 0, 1e-9, (k) / _SCAN_POINTS)  # t of point k-1 (t index k <-> (k+1)/n)
     hi_t = np.minimum((k + 2) / _SCAN_POINTS, 1.0)
     lo = swi + lo_t * span
     hi = swi + hi_t * span
     h_hi = _h(relperm, hi, swi, fwi, mu_w, mu_o, gravity)
     h_lo = _h(relperm, lo, swi, fwi, mu_w, mu_o, gravity)
-    piston = (hi_t >= 1.0) & (h_hi >= 0.0)
+    piston = (hi_t >= 1.0) & (h_hi >= -1e-12)
     spreading = (k == 0) & (h_lo <= 0.0)
     if batch == () and not (piston or spreading) and h_lo > 0.0 > h_hi:
         # One case: scipy's Brent method on the same bracket (fewer evaluations than bisection).

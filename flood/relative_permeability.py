@@ -264,7 +264,7 @@ class LabTable:
         if sw[-1] < s_hi - tol:
             raise FloodInputError(f"{self.field_name}[-1].sw", float(sw[-1]),
                                   f"the table must reach 1 - sor = {s_hi:g}")
-        kro_hi = float(self.kr(s_hi)[1])
+        kro_hi = float(self._po(np.clip(s_hi, sw[0], sw[-1])))
         if kro_hi > 1e-6:
             raise FloodInputError(f"{self.field_name}: kro at 1 - sor", kro_hi,
                                   f"kro must fall to 0 at Sw = 1 - sor = {s_hi:g}",
