@@ -1,0 +1,278 @@
+"""Callbacks: adapt the inputs, call the engine through the adapter, build figures, return.
+
+The callback bodies are plain module-level functions (``update_view``, ``load_files``,
+``update_pins``, ``download``) so tests can call them directly; :func:`register` wires them to an app.
+"""
+
+from __future__ import annotations
+
+import base64
+
+from dash import ALL, Input, Output, State, ctx, no_update
+
+from flood.errors import FloodInputError
+
+from . import adapter, components, figures, ids
+from .adapter import CONTROL_NAMES, CONTROLS
+
+_SLIDERS = tuple(c for c in CONTROLS if c.slider)
+_BOXES = tuple(ids.box(n) for n in CONTROL_NAMES)
+
+#: Keys of the dict returned by :func:`compute_view`, in the order of the registered outputs.
+VIEW_KEYS = ("fig_rate_cut", "fig_fractional_flow", "fig_recovery", "fig_wor", "fig_profile", "cards",
+             "field_messages", "general_message", "current", "mobility_ratio_box", "mu_o_box", "profile_max",
+             "profile_marks", "notes", "corey_button_style", "case_name", "layer_section")
+
+
+def _blank_view():
+    return {k: no_update for k in VIEW_KEYS}
+
+
+def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: set) -> dict:
+    """Everything the main view shows for one set of control values.
+
+    Parameters
+    ----------
+    values : dict
+        Control name -> typed value (None when a box is empty or not a number).
+    base : dict
+        The loaded scenario (demo or upload).
+    pins : list
+        Pinned cases (see :func:`flood.dashboard.adapter.pin_case`).
+    pvi : float
+        PVI of the saturation profile [total PV].
+    triggered : set
+        Component ids whose change fired the callback (empty on the first call).
+
+    Returns
+    -------
+    dict
+        Keys :data:`VIEW_KEYS`; ``dash.no_update`` where nothing changes. On a bad value only the
+        messages change and the last good case stays on screen.
+    """
+    out = _blank_view()
+    derive = triggered == {ids.box("mobility_ratio")}
+    messages = {n: "" for n in CONTROL_NAMES}
+    try:
+        scenario = adapter.scenario_from_controls(base, values, derive_oil_viscosity=derive)
+        data, result = adapter.evaluate(scenario)
+    except FloodInputError as err:
+        name = adapter.control_for_error(err)
+        if name:
+            messages[name] = str(err)
+            out["general_message"] = ""
+        else:
+            out["general_message"] = str(err)
+        out["field_messages"] = messages
+        return out
+    out["field_messages"] = messages
+    out["general_message"] = ""
+    end = float(data["limits"]["max_pvi"])
+    pvi = min(max(float(pvi or 0.0), 0.0), end)
+    out["fig_profile"] = figures.profile_figure(result, pvi)
+    if triggered == {ids.PROFILE_PVI}:
+        return out
+    pinned = adapter.pinned_results(pins or [])
+    out.update(
+        fig_rate_cut=figures.rate_cut_figure(result, pinned),
+        fig_fractional_flow=figures.fractional_flow_figure(result, pinned),
+        fig_recovery=figures.recovery_figure(result, pinned),
+        fig_wor=figures.wor_figure(result, pinned),
+        cards=components.summary_cards(result.summary),
+        current=data,
+        profile_max=end,
+        profile_marks={0: "0", end: f"{end:g}"},
+        case_name=data.get("name", ""),
+    )
+    if derive:
+        out["mu_o_box"] = data["fluids"]["mu_o_cp"]
+    else:
+        out["mobility_ratio_box"] = float(f"{result.summary['endpoint_mobility_ratio']:.4g}")
+    out["notes"] = _notes(data)
+    out["corey_button_style"] = {} if not adapter.uses_corey(data) else {"display": "none"}
+    layers = getattr(result, "layers", None)
+    out["layer_section"] = [] if layers is None else components.layer_section(
+        figures.layer_fronts_figure(layers), figures.layer_coverage_figure(layers))
+    return out
+
+
+def _notes(scenario: dict) -> list:
+    notes = []
+    if not adapter.uses_corey(scenario):
+        rows = len(scenario["relperm"].get("table") or [])
+        notes.append(f"Lab relative-permeability table in use ({rows} rows): the Corey exponent and endpoint "
+                     "controls do not apply.")
+    if not adapter.uses_constant_rate(scenario):
+        notes.append("Injection schedule from the scenario file in use: the rate control does not apply.")
+    return " ".join(notes)
+
+
+def update_view(*args):
+    """Main callback: control boxes, base scenario, pins and profile PVI -> every view."""
+    n = len(CONTROL_NAMES)
+    values = dict(zip(CONTROL_NAMES, args[:n]))
+    base, pins, pvi = args[n:n + 3]
+    triggered = {p.rsplit(".", 1)[0] for p in (ctx.triggered_prop_ids or {})} if ctx else set()
+    out = compute_view(values, base, pins, pvi, triggered)
+    order = [o["id"]["field"] for o in ctx.outputs_list[VIEW_KEYS.index("field_messages")]]
+    fm = out["field_messages"]
+    out["field_messages"] = no_update if fm is no_update else [fm.get(k, "") for k in order]
+    return tuple(out[k] for k in VIEW_KEYS)
+
+
+# ----------------------------------------------------------------------------------------------
+
+
+LOAD_KEYS = ("base", "boxes", "msg_scenario", "msg_relperm", "msg_layers")
+
+
+def load_files(trigger: str, contents, filename, current: dict, values: dict) -> dict:
+    """Uploads and the back-to-Corey button -> new base scenario, box values and upload messages.
+
+    A rejected file changes only its own message; the current case stays as it was.
+    """
+    out = {k: no_update for k in LOAD_KEYS}
+    key = {ids.UPLOAD_SCENARIO: "msg_scenario", ids.UPLOAD_RELPERM: "msg_relperm",
+           ids.UPLOAD_LAYERS: "msg_layers"}.get(trigger)
+    try:
+        if trigger == ids.UPLOAD_SCENARIO:
+            base = adapter.scenario_from_upload(contents, filename)
+            out["boxes"] = adapter.controls_from_scenario(base)
+            out[key] = f"Loaded {filename}: {base.get('name', '')}"
+        elif trigger == ids.UPLOAD_RELPERM:
+            base = adapter.scenario_with_relperm_table(current, contents, filename)
+            out[key] = f"Loaded {filename}: {len(base['relperm']['table'])} rows"
+        elif trigger == ids.UPLOAD_LAYERS:
+            base = adapter.scenario_with_layer_table(current, contents, filename)
+            out[key] = f"Loaded {filename}"
+        elif trigger == ids.COREY_BUTTON:
+            base = adapter.scenario_with_corey(current, values)
+        else:
+            return out
+    except FloodInputError as err:
+        if key:
+            out[key] = f"Rejected: {err}"
+        return out
+    out["base"] = base
+    return out
+
+
+def load_files_callback(scn, rp, lay, corey, scn_name, rp_name, lay_name, current, *box_values):
+    """Registered wrapper of :func:`load_files`."""
+    trigger = ctx.triggered_id
+    contents = {ids.UPLOAD_SCENARIO: (scn, scn_name), ids.UPLOAD_RELPERM: (rp, rp_name),
+                ids.UPLOAD_LAYERS: (lay, lay_name)}.get(trigger, (None, None))
+    out = load_files(trigger, contents[0], contents[1], current, dict(zip(CONTROL_NAMES, box_values)))
+    boxes = out["boxes"]
+    box_out = [no_update] * len(CONTROL_NAMES) if boxes is no_update else [boxes.get(n) for n in CONTROL_NAMES]
+    return (out["base"], *box_out, out["msg_scenario"], out["msg_relperm"], out["msg_layers"])
+
+
+def update_pins(trigger, current: dict, pins: list, label: str):
+    """Pin the current case or remove one: returns (pins, cases table, message)."""
+    pins = list(pins or [])
+    if trigger == ids.PIN_BUTTON:
+        try:
+            pins = adapter.pin_case(pins, current, label)
+        except FloodInputError as err:
+            return no_update, no_update, str(err)
+        msg = f"Pinned {pins[-1]['label']} ({len(pins)} of at most {adapter.MAX_PINS})."
+    elif isinstance(trigger, dict) and trigger.get("type") == ids.UNPIN_TYPE:
+        pins = adapter.unpin_case(pins, trigger["key"])
+        msg = "Removed."
+    else:
+        return no_update, no_update, no_update
+    return pins, components.cases_table(pins), msg
+
+
+def update_pins_callback(n_pin, n_unpin, current, pins, label):
+    """Registered wrapper of :func:`update_pins` (ignores remove buttons that were only just drawn)."""
+    trigger = ctx.triggered_id
+    if isinstance(trigger, dict) and not any(t["value"] for t in ctx.triggered):
+        return no_update, no_update, no_update
+    return update_pins(trigger, current, pins, label)
+
+
+def download(trigger, current: dict):
+    """dcc.Download data for the forecast CSV, the workbook or the scenario JSON of the current case."""
+    kind = {ids.DOWNLOAD_CSV: "csv", ids.DOWNLOAD_XLSX: "xlsx", ids.DOWNLOAD_JSON: "json"}.get(trigger)
+    if kind is None or not current:
+        return no_update
+    data, filename = adapter.download_bytes(kind, current)
+    return {"content": base64.b64encode(data).decode("ascii"), "filename": filename, "base64": True}
+
+
+def download_callback(n_csv, n_xlsx, n_json, current):
+    """Registered wrapper of :func:`download`."""
+    return download(ctx.triggered_id, current)
+
+
+_SYNC_JS = """
+function(sliderValue, boxValue) {
+    const dc = window.dash_clientside;
+    const trig = (dc.callback_context.triggered || []).map(t => t.prop_id);
+    const LOG = %(log)s;
+    if (trig.some(p => p.endsWith('-slider.value'))) {
+        if (sliderValue === null || sliderValue === undefined) { return [dc.no_update, dc.no_update]; }
+        const v = LOG ? Number(Math.pow(10, sliderValue).toPrecision(4)) : Number(sliderValue.toFixed(6));
+        return [dc.no_update, v];
+    }
+    if (typeof boxValue !== 'number' || !isFinite(boxValue) || (LOG && boxValue <= 0)) {
+        return [dc.no_update, dc.no_update];
+    }
+    const s = LOG ? Math.log10(boxValue) : boxValue;
+    return [Math.min(Math.max(s, %(lo)s), %(hi)s), dc.no_update];
+}
+"""
+
+
+def register(app) -> None:
+    """Attach every callback to ``app``."""
+    import math
+
+    for c in _SLIDERS:
+        lo, hi = (math.log10(c.lo), math.log10(c.hi)) if c.log else (c.lo, c.hi)
+        app.clientside_callback(_SYNC_JS % {"log": "true" if c.log else "false", "lo": lo, "hi": hi},
+                                Output(ids.slider(c.name), "value"), Output(ids.box(c.name), "value"),
+                                Input(ids.slider(c.name), "value"), Input(ids.box(c.name), "value"),
+                                prevent_initial_call=True)
+
+    app.callback(
+        Output(ids.FIG_RATE_CUT, "figure"), Output(ids.FIG_FRACTIONAL_FLOW, "figure"),
+        Output(ids.FIG_RECOVERY, "figure"), Output(ids.FIG_WOR, "figure"), Output(ids.FIG_PROFILE, "figure"),
+        Output(ids.CARDS, "children"), Output(ids.field_message(ALL), "children"),
+        Output(ids.GENERAL_MESSAGE, "children"), Output(ids.CURRENT_STORE, "data"),
+        Output(ids.box("mobility_ratio"), "value"), Output(ids.box("mu_o_cp"), "value"),
+        Output(ids.PROFILE_PVI, "max"), Output(ids.PROFILE_PVI, "marks"), Output(ids.RELPERM_NOTE, "children"),
+        Output(ids.COREY_BUTTON, "style"), Output("case-name", "children"), Output(ids.LAYER_SECTION, "children"),
+        *[Input(b, "value") for b in _BOXES],
+        Input(ids.BASE_STORE, "data"), Input(ids.PINS_STORE, "data"), Input(ids.PROFILE_PVI, "value"),
+        prevent_initial_call=True,
+    )(update_view)
+
+    app.callback(
+        Output(ids.BASE_STORE, "data"),
+        *[Output(b, "value", allow_duplicate=True) for b in _BOXES],
+        Output(ids.UPLOAD_MESSAGE_SCENARIO, "children"), Output(ids.UPLOAD_MESSAGE_RELPERM, "children"),
+        Output(ids.UPLOAD_MESSAGE_LAYERS, "children"),
+        Input(ids.UPLOAD_SCENARIO, "contents"), Input(ids.UPLOAD_RELPERM, "contents"),
+        Input(ids.UPLOAD_LAYERS, "contents"), Input(ids.COREY_BUTTON, "n_clicks"),
+        State(ids.UPLOAD_SCENARIO, "filename"), State(ids.UPLOAD_RELPERM, "filename"),
+        State(ids.UPLOAD_LAYERS, "filename"), State(ids.CURRENT_STORE, "data"),
+        *[State(b, "value") for b in _BOXES],
+        prevent_initial_call=True,
+    )(load_files_callback)
+
+    app.callback(
+        Output(ids.PINS_STORE, "data"), Output(ids.CASES_TABLE, "children"), Output(ids.PIN_MESSAGE, "children"),
+        Input(ids.PIN_BUTTON, "n_clicks"), Input(ids.unpin(ALL), "n_clicks"),
+        State(ids.CURRENT_STORE, "data"), State(ids.PINS_STORE, "data"), State(ids.PIN_LABEL, "value"),
+        prevent_initial_call=True,
+    )(update_pins_callback)
+
+    app.callback(
+        Output(ids.DOWNLOAD, "data"),
+        Input(ids.DOWNLOAD_CSV, "n_clicks"), Input(ids.DOWNLOAD_XLSX, "n_clicks"), Input(ids.DOWNLOAD_JSON, "n_clicks"),
+        State(ids.CURRENT_STORE, "data"),
+        prevent_initial_call=True,
+    )(download_callback)

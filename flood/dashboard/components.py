@@ -1,0 +1,105 @@
+"""Small builders of layout pieces: a slider paired with a box, a numeric box, cards, uploads."""
+
+from __future__ import annotations
+
+import math
+
+from dash import dcc, html
+
+from flood.scenario import MAX_FILE_BYTES
+
+from . import ids
+from .adapter import SUMMARY_ITEMS, format_quantity
+
+CAUTION = ("Screening estimates only. Reserves, design and operating decisions rest with licensed "
+           "professionals and the regulations that apply where you work.")
+
+
+def _log_marks(lo, hi):
+    marks = {}
+    for e in range(math.floor(math.log10(lo)), math.ceil(math.log10(hi)) + 1):
+        for m in (1, 3):
+            v = m * 10.0 ** e
+            if lo <= v <= hi:
+                marks[round(math.log10(v), 4)] = f"{v:g}"
+    return marks
+
+
+def _linear_marks(lo, hi):
+    return {lo: f"{lo:g}", hi: f"{hi:g}"}
+
+
+def control_row(control, value) -> html.Div:
+    """Label, slider (optional) and numeric box of one control, with its inline message line."""
+    box = dcc.Input(id=ids.box(control.name), type="number", value=value, debounce=True,
+                    className="num-box", step="any", inputMode="decimal")
+    parts = [html.Label(control.label, htmlFor=ids.box(control.name), className="control-label")]
+    if control.slider:
+        if control.log:
+            sv = math.log10(value) if value and value > 0 else 0.0
+            slider = dcc.Slider(id=ids.slider(control.name), min=math.log10(control.lo), max=math.log10(control.hi),
+                                step=0.01, value=sv, marks=_log_marks(control.lo, control.hi),
+                                allow_direct_input=False, updatemode="mouseup", className="slider")
+        else:
+            slider = dcc.Slider(id=ids.slider(control.name), min=control.lo, max=control.hi, step=control.step,
+                                value=value, marks=_linear_marks(control.lo, control.hi),
+                                allow_direct_input=False, updatemode="mouseup", className="slider")
+        parts.append(html.Div([html.Div(slider, className="slider-cell"), box], className="slider-row"))
+    else:
+        parts.append(box)
+    parts.append(html.Div(id=ids.field_message(control.name), className="field-message", role="alert"))
+    return html.Div(parts, className="control")
+
+
+def summary_cards(summary: dict) -> list:
+    """One card per summary quantity (values from the engine's summary dict)."""
+    cards = []
+    for key, (label, unit, _) in SUMMARY_ITEMS.items():
+        cards.append(html.Div([html.Div(label, className="card-label"),
+                               html.Div(format_quantity(key, summary.get(key)), className="card-value",
+                                        id=f"card-{key}"),
+                               html.Div(unit, className="card-unit")], className="card"))
+    return cards
+
+
+def upload_box(upload_id, message_id, text, accept) -> html.Div:
+    """A drop/click upload area with its message line."""
+    return html.Div([
+        dcc.Upload(id=upload_id, children=html.Div([text, html.Span(" (drop or click)", className="muted")]),
+                   accept=accept, multiple=False, className="upload"),
+        html.Div(id=message_id, className="upload-message", role="status"),
+    ], className="upload-group")
+
+
+def upload_cap_text() -> str:
+    """Stated size cap of uploads."""
+    return f"Files up to {MAX_FILE_BYTES / 1e6:g} MB."
+
+
+def cases_table(pins: list) -> html.Div:
+    """Table of pinned cases' summaries with a remove button each."""
+    if not pins:
+        return html.Div("No pinned cases yet. Pin the current case to compare it with later changes.",
+                        className="muted")
+    head = html.Tr([html.Th("Case")] + [html.Th(f"{SUMMARY_ITEMS[k][0]} [{SUMMARY_ITEMS[k][1]}]")
+                                        for k in SUMMARY_ITEMS] + [html.Th("")])
+    rows = []
+    for p in pins:
+        rows.append(html.Tr([html.Td(p["label"])]
+                            + [html.Td(format_quantity(k, p["summary"].get(k))) for k in SUMMARY_ITEMS]
+                            + [html.Td(html.Button("Remove", id=ids.unpin(p["key"]), className="small-button",
+                                                   n_clicks=0))]))
+    return html.Table([html.Thead(head), html.Tbody(rows)], className="cases")
+
+
+def graph(fig_id, figure=None):
+    """A dcc.Graph with our configuration."""
+    return dcc.Graph(id=fig_id, figure=figure or {}, config={"displaylogo": False, "responsive": True},
+                     className="graph")
+
+
+def layer_section(fronts_figure, coverage_figure) -> list:
+    """Children of the layered-reservoir section (shown only when the case has layers)."""
+    return [html.H2("Layered reservoir"),
+            html.Div([graph(ids.FIG_LAYER_FRONTS, fronts_figure), graph(ids.FIG_LAYER_COVERAGE, coverage_figure)],
+                     className="figures")]

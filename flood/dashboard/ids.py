@@ -1,0 +1,89 @@
+"""Every component id of the dashboard, in one place.
+
+Pattern-matching ids are built by the small functions at the end.
+"""
+
+# Per-user state (dcc.Store, kept in the browser)
+BASE_STORE = "base-scenario"          # scenario loaded from the demo or an upload (JSON dict)
+CURRENT_STORE = "current-scenario"    # last valid scenario built from the base + the controls
+PINS_STORE = "pinned-cases"           # list of pinned cases: {"key", "label", "scenario", "summary"}
+
+# Inputs
+PROFILE_PVI = "profile-pvi"           # slider: PVI of the saturation profile
+RELPERM_NOTE = "relperm-note"
+COREY_BUTTON = "back-to-corey"
+OIL_VISCOSITY_NOTE = "oil-viscosity-note"
+GENERAL_MESSAGE = "general-message"
+
+# Summary cards
+CARDS = "summary-cards"
+
+# Figures
+FIG_FRACTIONAL_FLOW = "fig-fractional-flow"
+FIG_PROFILE = "fig-profile"
+FIG_RECOVERY = "fig-recovery"
+FIG_RATE_CUT = "fig-rate-cut"
+FIG_WOR = "fig-wor"
+FIG_LAYER_FRONTS = "fig-layer-fronts"
+FIG_LAYER_COVERAGE = "fig-layer-coverage"
+LAYER_SECTION = "layer-section"
+
+MAIN_FIGURES = (FIG_FRACTIONAL_FLOW, FIG_PROFILE, FIG_RECOVERY, FIG_RATE_CUT, FIG_WOR)
+
+# Uploads
+UPLOAD_SCENARIO = "upload-scenario"
+UPLOAD_RELPERM = "upload-relperm"
+UPLOAD_LAYERS = "upload-layers"
+UPLOAD_MESSAGE_SCENARIO = "upload-scenario-message"
+UPLOAD_MESSAGE_RELPERM = "upload-relperm-message"
+UPLOAD_MESSAGE_LAYERS = "upload-layers-message"
+
+# Downloads
+DOWNLOAD = "download"
+DOWNLOAD_CSV = "download-csv"
+DOWNLOAD_XLSX = "download-xlsx"
+DOWNLOAD_JSON = "download-json"
+
+# Compare cases
+PIN_BUTTON = "pin-case"
+PIN_LABEL = "pin-label"
+PIN_MESSAGE = "pin-message"
+CASES_TABLE = "cases-table"
+
+# Numerical views (background callbacks)
+NUM_RUN = "numerical-run"
+NUM_CANCEL = "numerical-cancel"
+NUM_PROGRESS = "numerical-progress"
+NUM_FIGURE = "fig-numerical"
+NUM_MESSAGE = "numerical-message"
+SWEEP_RUN = "sweep-run"
+SWEEP_CANCEL = "sweep-cancel"
+SWEEP_PROGRESS = "sweep-progress"
+SWEEP_FIGURE = "fig-sweep"
+SWEEP_MESSAGE = "sweep-message"
+
+
+def slider(name: str) -> str:
+    """Id of the slider of control ``name``."""
+    return f"{name}-slider"
+
+
+def box(name: str) -> str:
+    """Id of the numeric entry box of control ``name``."""
+    return f"{name}-box"
+
+
+FIELD_MESSAGE_TYPE = "field-message"
+
+
+def field_message(name: str) -> dict:
+    """Pattern-matching id of the inline message under control ``name``."""
+    return {"type": FIELD_MESSAGE_TYPE, "field": name}
+
+
+UNPIN_TYPE = "unpin"
+
+
+def unpin(key: str) -> dict:
+    """Pattern-matching id of the remove button of a pinned case."""
+    return {"type": UNPIN_TYPE, "key": key}

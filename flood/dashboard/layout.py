@@ -1,0 +1,84 @@
+"""Page layout: the inputs sidebar, summary cards, figures, uploads, downloads and pinned cases."""
+
+from __future__ import annotations
+
+from dash import dcc, html
+
+from . import components, ids
+from .components import graph as _graph
+from .adapter import CONTROLS, controls_from_scenario, demo_scenario, evaluate, layers_supported
+
+
+def build_layout(extra_sections=()) -> html.Div:
+    """The whole page with the demo scenario loaded (no module-level state: built per call)."""
+    from . import figures
+
+    demo = demo_scenario()
+    values = controls_from_scenario(demo)
+    _, result = evaluate(demo)
+    explore = [components.control_row(c, values[c.name]) for c in CONTROLS if c.slider]
+    panel = [components.control_row(c, values[c.name]) for c in CONTROLS if not c.slider]
+    sidebar = html.Aside([
+        html.H2("Explore"),
+        html.P(["Moving the mobility ratio sets the oil viscosity: μo = M · μw · kro(Swc) / krw(1 − Sor), "
+                "with the water viscosity and the endpoints held fixed. Changing μw or an endpoint keeps μo "
+                "and moves M (shown live on the cards)."], className="note", id="mobility-note"),
+        *explore,
+        html.Div(id=ids.RELPERM_NOTE, className="note"),
+        html.Button("Back to Corey curves", id=ids.COREY_BUTTON, n_clicks=0, className="small-button",
+                    style={"display": "none"}),
+        html.Details([html.Summary("Reservoir and fluids"), *panel], open=True, className="panel"),
+    ], className="sidebar")
+    main = html.Main([
+        html.Div(components.CAUTION, className="caution", id="caution"),
+        html.Div(id=ids.GENERAL_MESSAGE, className="general-message", role="alert"),
+        html.Div(components.summary_cards(result.summary), id=ids.CARDS, className="cards"),
+        html.Div([
+            _graph(ids.FIG_RATE_CUT, figures.rate_cut_figure(result)),
+            _graph(ids.FIG_FRACTIONAL_FLOW, figures.fractional_flow_figure(result)),
+            _graph(ids.FIG_RECOVERY, figures.recovery_figure(result)),
+            _graph(ids.FIG_WOR, figures.wor_figure(result)),
+            html.Div([
+                _graph(ids.FIG_PROFILE, figures.profile_figure(result, 0.3)),
+                html.Label("Profile at pore volumes injected [total PV]", htmlFor=ids.PROFILE_PVI,
+                           className="control-label"),
+                dcc.Slider(id=ids.PROFILE_PVI, min=0.0, max=float(demo["limits"]["max_pvi"]), step=0.01, value=0.3,
+                           marks={0: "0", float(demo["limits"]["max_pvi"]): f"{demo['limits']['max_pvi']:g}"},
+                           updatemode="mouseup", allow_direct_input=True, className="slider"),
+            ], className="graph-cell"),
+        ], className="figures"),
+        html.Div(id=ids.LAYER_SECTION, className="section-layers"),
+        html.Section([
+            html.H2("Compare cases"),
+            html.Div([dcc.Input(id=ids.PIN_LABEL, type="text", placeholder="label (optional)", maxLength=40,
+                                className="text-box"),
+                      html.Button("Pin current case", id=ids.PIN_BUTTON, n_clicks=0, className="button"),
+                      html.Span(id=ids.PIN_MESSAGE, className="muted")], className="row"),
+            html.Div(components.cases_table([]), id=ids.CASES_TABLE),
+        ], className="section"),
+        html.Section([
+            html.H2("Files"),
+            html.Div([
+                components.upload_box(ids.UPLOAD_SCENARIO, ids.UPLOAD_MESSAGE_SCENARIO, "Load scenario JSON",
+                                      ".json,application/json"),
+                components.upload_box(ids.UPLOAD_RELPERM, ids.UPLOAD_MESSAGE_RELPERM,
+                                      "Load relative permeability CSV (sw, krw, kro)", ".csv,text/csv"),
+                html.Div(components.upload_box(ids.UPLOAD_LAYERS, ids.UPLOAD_MESSAGE_LAYERS,
+                                               "Load layer table CSV", ".csv,text/csv"),
+                         style={} if layers_supported() else {"display": "none"}),
+            ], className="uploads"),
+            html.P(components.upload_cap_text() + " Files are checked exactly as by the command line; a rejected "
+                   "file leaves the current case as it was.", className="muted"),
+            html.Div([html.Button("Forecast CSV", id=ids.DOWNLOAD_CSV, n_clicks=0, className="button"),
+                      html.Button("Workbook XLSX", id=ids.DOWNLOAD_XLSX, n_clicks=0, className="button"),
+                      html.Button("Scenario JSON", id=ids.DOWNLOAD_JSON, n_clicks=0, className="button")],
+                     className="row"),
+            dcc.Download(id=ids.DOWNLOAD),
+        ], className="section"),
+        *extra_sections,
+    ], className="main")
+    header = html.Header([html.H1("flood"), html.Span("waterflood screening forecasts", className="tagline"),
+                          html.Span(demo["name"], className="case-name", id="case-name")], className="header")
+    stores = [dcc.Store(id=ids.BASE_STORE, data=demo), dcc.Store(id=ids.CURRENT_STORE, data=demo),
+              dcc.Store(id=ids.PINS_STORE, data=[])]
+    return html.Div([*stores, header, html.Div([sidebar, main], className="page")], className="app")
