@@ -59,8 +59,8 @@ def normalized_water_saturation(sw, swc, sor):
 
     Examples
     --------
-    >>> float(normalized_water_saturation(0.375, 0.2, 0.25))
-    0.3181818181818182
+    >>> round(float(normalized_water_saturation(0.375, 0.2, 0.25)), 6)
+    0.318182
     """
     sw = np.asarray(sw, dtype=float)
     return np.clip((sw - swc) / (1.0 - swc - sor), 0.0, 1.0)
