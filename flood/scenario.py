@@ -132,6 +132,40 @@ class Limits(_Model):
     max_pvi: float = Field(gt=0, le=100, description="largest pore volumes injected [total PV]")
 
 
+class LayerRow(_Model):
+    """One layer of a layer table: thickness, permeability and (optionally) porosity."""
+
+    thickness_ft: float = Field(gt=0, le=1e4, description="layer net thickness [ft]")
+    permeability_md: float = Field(gt=0, le=1e6, description="layer permeability [md]")
+    porosity: Optional[float] = Field(None, gt=0, le=1, description="layer porosity [fraction]; default reservoir.porosity")
+
+
+class LayerVariation(_Model):
+    """Equal-thickness log-normal layers generated from the Dykstra-Parsons variation V."""
+
+    v: float = Field(ge=0, lt=1, description="Dykstra-Parsons permeability variation V [fraction]")
+    count: int = Field(ge=1, le=1000, description="number of equal-thickness layers [-]")
+
+
+class Layers(_Model):
+    """Layered reservoir: the forecast method and the layers (a table, a CSV file or a variation V)."""
+
+    method: Literal["dykstra_parsons", "layered_fractional_flow"]
+    table: Optional[list[LayerRow]] = None
+    variation: Optional[LayerVariation] = None
+    file: Optional[str] = Field(None, min_length=1, description="layer CSV path relative to the scenario file")
+
+    @model_validator(mode="after")
+    def _one_source(self):
+        given = [k for k in ("table", "variation", "file") if getattr(self, k) is not None]
+        if len(given) != 1:
+            raise _FieldError("layers", " and ".join(given) or "neither",
+                              "exactly one of 'table', 'variation' or 'file'")
+        if self.table is not None and len(self.table) == 0:
+            raise _FieldError("layers.table", [], "at least one layer row {thickness_ft, permeability_md}")
+        return self
+
+
 class Scenario(_Model):
     """A complete waterflood scenario (field units)."""
 
@@ -142,6 +176,7 @@ class Scenario(_Model):
     fluids: Fluids
     injection: Injection
     limits: Limits
+    layers: Optional[Layers] = None
 
     @model_validator(mode="after")
     def _gravity_inputs(self):
@@ -150,6 +185,22 @@ class Scenario(_Model):
                 if getattr(self.fluids, key) is None:
                     raise _FieldError(f"fluids.{key}", None, "a specific gravity > 0",
                                       "required when reservoir.dip_deg is not 0")
+        return self
+
+    @model_validator(mode="after")
+    def _layer_inputs(self):
+        if self.layers is None:
+            return self
+        if self.reservoir.dip_deg != 0.0:
+            raise _FieldError("reservoir.dip_deg", self.reservoir.dip_deg, "0 when 'layers' is given",
+                              "the layered methods assume horizontal layers")
+        if self.saturations.sgi > 0.0:
+            raise _FieldError("saturations.sgi", self.saturations.sgi, "0 when 'layers' is given",
+                              "the layered methods assume no initial free gas")
+        swi = self.saturations.swc if self.saturations.swi is None else self.saturations.swi
+        if self.layers.method == "dykstra_parsons" and swi > self.saturations.swc:
+            raise _FieldError("saturations.swi", swi, f"swi = swc = {self.saturations.swc:g} for dykstra_parsons",
+                              "the piston-like method assumes immobile initial water")
         return self
 
 
@@ -176,6 +227,8 @@ def _constraint_text(model_cls, loc) -> str:
     info = None
     subs = {"corey": CoreyRelperm, "table": TableRelperm}
     for part in loc:
+        if isinstance(part, int) and isinstance(cls, type):
+            continue  # an item of a list of models (e.g. layers.table[2])
         if isinstance(part, int) or cls is None:
             break
         if cls == "union":
@@ -186,8 +239,7 @@ def _constraint_text(model_cls, loc) -> str:
             return ""
         info = fields[part]
         ann = info.annotation
-        cls = "union" if part == "relperm" else next(
-            (c for c in (Reservoir, Saturations, Fluids, Injection, Limits) if ann is c), None)
+        cls = "union" if part == "relperm" else _model_in(ann)
     if info is None:
         return ""
     lo = hi = None
@@ -203,6 +255,19 @@ def _constraint_text(model_cls, loc) -> str:
     if lo or hi:
         return " ".join(p for p in (lo, "value", hi) if p)
     return ""
+
+
+def _model_in(ann):
+    """The scenario model class inside an annotation such as ``Optional[list[LayerRow]]`` (or None)."""
+    import typing
+
+    if isinstance(ann, type):
+        return ann if issubclass(ann, BaseModel) else None
+    for arg in typing.get_args(ann):
+        found = _model_in(arg)
+        if found is not None:
+            return found
+    return None
 
 
 def _path(loc) -> str:
@@ -336,29 +401,65 @@ def read_relperm_csv_text(text: str, field_name: str = "relperm.file"):
     -------
     sw, krw, kro : numpy.ndarray
     """
+    cols = read_csv_columns(text, field_name, ("sw", "krw", "kro"))
+    return cols["sw"], cols["krw"], cols["kro"]
+
+
+def read_layer_csv_text(text: str, field_name: str = "layers.file"):
+    """Parse a layer CSV: header ``thickness_ft, permeability_md[, porosity]``, one row per layer.
+
+    Returns
+    -------
+    thickness_ft, permeability_md, porosity : numpy.ndarray
+        ``porosity`` is NaN where the column is absent or a cell is blank.
+    """
+    cols = read_csv_columns(text, field_name, ("thickness_ft", "permeability_md"), ("porosity",))
+    return cols["thickness_ft"], cols["permeability_md"], cols["porosity"]
+
+
+def read_csv_columns(text: str, field_name: str, required, optional=()):
+    """Numeric columns of a CSV with a header row (names case-insensitive; extra columns ignored).
+
+    Returns
+    -------
+    dict of numpy.ndarray
+        One array per required and optional column; an absent optional column or a blank optional
+        cell is NaN.
+
+    Raises
+    ------
+    FloodInputError
+        Unparseable CSV, a missing required column, or a cell that is not a number (the message
+        names the row and column).
+    """
     import io
 
     import pandas as pd
 
+    header = ", ".join(required) + (f" ({', '.join(optional)} optional)" if optional else "")
     try:
         df = pd.read_csv(io.StringIO(text), comment="#", skipinitialspace=True)
     except (ValueError, pd.errors.ParserError) as exc:
-        raise FloodInputError(field_name, "(CSV)", "a CSV table with a header row sw, krw, kro",
+        raise FloodInputError(field_name, "(CSV)", f"a CSV table with a header row {header}",
                               str(exc).splitlines()[0]) from None
     cols = {str(c).strip().lower(): c for c in df.columns}
-    missing = [c for c in ("sw", "krw", "kro") if c not in cols]
+    missing = [c for c in required if c not in cols]
     if missing:
-        raise FloodInputError(field_name, list(df.columns)[:6], "a header row with columns sw, krw, kro",
+        raise FloodInputError(field_name, list(df.columns)[:6], f"a header row with columns {header}",
                               f"missing {', '.join(missing)}")
-    out = []
-    for name in ("sw", "krw", "kro"):
-        col = pd.to_numeric(df[cols[name]], errors="coerce")
-        bad = np.nonzero(col.isna().to_numpy())[0]
-        if bad.size:
-            i = int(bad[0])
-            raise FloodInputError(f"{field_name}[{i}].{name}", df[cols[name]].iloc[i], "a number")
-        out.append(col.to_numpy(dtype=float))
-    return tuple(out)
+    out = {}
+    for name in (*required, *optional):
+        if name not in cols:
+            out[name] = np.full(len(df), np.nan)
+            continue
+        raw = df[cols[name]]
+        col = pd.to_numeric(raw, errors="coerce")
+        bad = col.isna().to_numpy() & (raw.notna().to_numpy() | (name in required))
+        if bad.any():
+            i = int(np.argmax(bad))
+            raise FloodInputError(f"{field_name}[{i}].{name}", raw.iloc[i], "a number")
+        out[name] = col.to_numpy(dtype=float)
+    return out
 
 
 # ----------------------------------------------------------------------------------------------
@@ -387,6 +488,7 @@ class FloodCase:
     injection: InjectionPlan
     economic_water_cut: float
     max_pvi: float
+    layers: object = None  # flood.layers.LayerSet when the scenario has "layers"
 
 
 def build_relperm(sc: Scenario, base_dir=None):
@@ -398,16 +500,21 @@ def build_relperm(sc: Scenario, base_dir=None):
     if rp.table is not None:
         arr = np.asarray(rp.table, dtype=float)
         return LabTable(arr[:, 0], arr[:, 1], arr[:, 2], s.swc, s.sor, field_name="relperm.table")
-    base = Path(base_dir) if base_dir else getattr(sc, "_base_dir", Path.cwd())
-    path = Path(rp.file)
-    path = path if path.is_absolute() else base / path
-    try:
-        text = _read_text(path, "relative permeability CSV")
-    except FloodInputError as exc:
-        raise FloodInputError("relperm.file", rp.file, "a readable CSV file (relative to the scenario file)",
-                              exc.reason or exc.expected) from None
+    text = _read_side_file(sc, base_dir, rp.file, "relperm.file", "relative permeability CSV")
     sw, krw, kro = read_relperm_csv_text(text, "relperm.file")
     return LabTable(sw, krw, kro, s.swc, s.sor, field_name="relperm.file")
+
+
+def _read_side_file(sc: Scenario, base_dir, name: str, field_name: str, what: str) -> str:
+    """Text of a file named in a scenario, relative to the scenario's folder unless absolute."""
+    base = Path(base_dir) if base_dir else getattr(sc, "_base_dir", Path.cwd())
+    path = Path(name)
+    path = path if path.is_absolute() else base / path
+    try:
+        return _read_text(path, what)
+    except FloodInputError as exc:
+        raise FloodInputError(field_name, name, "a readable CSV file (relative to the scenario file)",
+                              exc.reason or exc.expected) from None
 
 
 def build_case(sc: Scenario, base_dir=None) -> FloodCase:
@@ -429,7 +536,35 @@ def build_case(sc: Scenario, base_dir=None) -> FloodCase:
         swi=sat.swc if sat.swi is None else sat.swi, sgi=sat.sgi, bo=fl.bo_rb_stb, bw=fl.bw_rb_stb,
         area_acres=res.area_acres, thickness_ft=res.thickness_ft, porosity=res.porosity,
         permeability_md=res.permeability_md, gravity=gravity, injection=plan,
-        economic_water_cut=sc.limits.economic_water_cut, max_pvi=sc.limits.max_pvi)
+        economic_water_cut=sc.limits.economic_water_cut, max_pvi=sc.limits.max_pvi,
+        layers=build_layers(sc, base_dir))
+
+
+def build_layers(sc: Scenario, base_dir=None):
+    """The :class:`flood.layers.LayerSet` of a scenario's ``layers`` (None without layers).
+
+    A table or CSV file gives the layers as listed (blank porosity = ``reservoir.porosity``);
+    a variation generates ``count`` equal-thickness layers sharing ``reservoir.thickness_ft``,
+    median ``reservoir.permeability_md`` (see :func:`flood.layers.generate_layers`).
+    """
+    from .layers import generate_layers, layer_set
+
+    lay, res = sc.layers, sc.reservoir
+    if lay is None:
+        return None
+    if lay.variation is not None:
+        h, k = generate_layers(lay.variation.v, lay.variation.count, res.permeability_md, res.thickness_ft)
+        return layer_set(lay.method, h, k, res.porosity, "layers.variation", "variation")
+    if lay.table is not None:
+        rows = lay.table
+        h = [r.thickness_ft for r in rows]
+        k = [r.permeability_md for r in rows]
+        phi = [res.porosity if r.porosity is None else r.porosity for r in rows]
+        return layer_set(lay.method, h, k, phi, "layers.table", "table")
+    text = _read_side_file(sc, base_dir, lay.file, "layers.file", "layer CSV")
+    h, k, phi = read_layer_csv_text(text, "layers.file")
+    phi = np.where(np.isnan(phi), res.porosity, phi)
+    return layer_set(lay.method, h, k, phi, "layers.file", "file")
 
 
 def scenario_to_dict(sc: Scenario) -> dict:

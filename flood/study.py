@@ -36,11 +36,22 @@ def run_study(case, points: int = 400) -> StudyResult:
     points : int
         Rows of the forecast table (plus the exact fill-up and breakthrough rows).
 
+    Notes
+    -----
+    With ``case.layers`` set, the layered forecast of :func:`flood.layers.layered_study` is used:
+    the same summary keys plus ``dykstra_parsons_v`` (and layer keys), the same table columns, and
+    ``StudyResult.layers`` holds the :class:`flood.layers.LayeredResult`.
+
     References
     ----------
-    Buckley & Leverett, 1942; Welge, 1952.
+    Buckley & Leverett, 1942; Welge, 1952; Dykstra & Parsons, 1950 (layers).
     """
     sol = buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+    if getattr(case, "layers", None) is not None:
+        from .layers import layered_study
+
+        lr = layered_study(case, points=points, solution=sol)
+        return StudyResult(summary=lr.summary, table=lr.forecast, solution=sol, layers=lr)
     summary = summarize(case, solution=sol)
     table = forecast_table(case, points=points, solution=sol, end_pvi=summary["forecast_end_pvi"])
     return StudyResult(summary=summary, table=table, solution=sol)
