@@ -136,3 +136,45 @@ def test_figures_have_axis_titles_with_units(demo):
         assert "[" in fig.layout.xaxis.title.text and "[" in fig.layout.yaxis.title.text
     assert figures.wor_figure(result).layout.yaxis.type == "log"
     assert set(figures.PINNED) <= set(figures.OKABE_ITO.values())
+
+
+@pytest.mark.parametrize("method", ["dykstra_parsons", "layered_fractional_flow"])
+def test_layered_view_appears_with_layers(demo, values, method):
+    values.update(layer_method=method, layer_v=0.7, layer_count=6)
+    out = callbacks.compute_view(values, demo, [], 0.4, {ids.LAYER_METHOD})
+    assert out["current"]["layers"] == {"method": method, "variation": {"v": 0.7, "count": 6}}
+    section = out["layer_section"]
+    assert section and section[0].children == "Layered reservoir"
+    fronts, coverage = section[2].children[0].figure, section[2].children[1].figure
+    result = run_study(build_case(parse_scenario(out["current"])), points=300)
+    days = adapter.days_at_pvi(out["current"], 0.4)
+    np.testing.assert_allclose(fronts.data[0].x, result.layers.front_positions([days])[0])
+    assert len(fronts.data[0].y) == 6
+    assert coverage.layout.xaxis.type == "log"
+    # the estimated V of 6 generated layers is reported (Dykstra & Parsons, 1950 definition via the engine)
+    assert f"{result.summary['dykstra_parsons_v']:.3f}" in section[1].children
+    values["layer_method"] = "none"
+    off = callbacks.compute_view(values, demo, [], 0.4, {ids.LAYER_METHOD})
+    assert off["layer_section"] == [] and "layers" not in off["current"]
+
+
+def test_layer_count_must_be_whole(demo, values):
+    values.update(layer_method="dykstra_parsons", layer_count=2.5)
+    out = callbacks.compute_view(values, demo, [], 0.4, {ids.box("layer_count")})
+    assert "layers.variation.count = 2.5" in out["field_messages"]["layer_count"]
+
+
+def test_layer_table_upload(demo, values):
+    csv = "thickness_ft,permeability_md,porosity\n10,400,0.22\n12,150,\n8,60,0.18\n"
+    out = callbacks.load_files(ids.UPLOAD_LAYERS, data_url(csv), "layers.csv", demo, values)
+    assert out["method"] == "dykstra_parsons"
+    assert out["base"]["layers"]["table"][1] == {"thickness_ft": 12.0, "permeability_md": 150.0}
+    values["layer_method"] = "dykstra_parsons"
+    view = callbacks.compute_view(values, out["base"], [], 0.4, {ids.BASE_STORE})
+    assert "Layer table in use (3 layers)" in view["layer_note"]
+    data, _ = adapter.download_bytes("xlsx", view["current"])
+    import pandas as pd
+    book = pd.read_excel(io.BytesIO(data), sheet_name=None)
+    assert list(book) == ["inputs", "summary", "forecast", "layers", "layer breakthroughs"]
+    bad = callbacks.load_files(ids.UPLOAD_LAYERS, data_url("h,k\n1,2\n"), "bad.csv", demo, values)
+    assert bad["base"] is no_update and "missing thickness_ft" in bad["msg_layers"]

@@ -64,6 +64,8 @@ CONTROLS = (
     Control("rate_bwpd", "Injection rate [bbl/d]", ("injection", "rate_bwpd"), 50.0, 5000.0, 10.0),
     Control("economic_water_cut", "Economic water-cut limit [fraction]",
             ("limits", "economic_water_cut"), 0.5, 0.999, 0.001),
+    Control("layer_v", "Dykstra-Parsons variation V [fraction]", ("layers", "variation", "v"), 0.0, 0.95, 0.01),
+    Control("layer_count", "Number of layers [-]", ("layers", "variation", "count"), 1, 50, 1),
     Control("area_acres", "Area [acre]", ("reservoir", "area_acres"), 0, 0, 0, slider=False),
     Control("thickness_ft", "Net thickness [ft]", ("reservoir", "thickness_ft"), 0, 0, 0, slider=False),
     Control("porosity", "Porosity [fraction]", ("reservoir", "porosity"), 0, 0, 0, slider=False),
@@ -77,6 +79,14 @@ CONTROLS = (
 CONTROL_NAMES = tuple(c.name for c in CONTROLS)
 _BY_PATH = {".".join(c.path): c.name for c in CONTROLS if c.path}
 COREY_CONTROLS = ("nw", "no", "krw_max", "kro_max")
+LAYER_CONTROLS = ("layer_v", "layer_count")
+
+#: Layer methods offered (value -> label); "none" means a homogeneous case.
+LAYER_METHODS = {"none": "None (one homogeneous layer)",
+                 "dykstra_parsons": "Dykstra-Parsons (piston-like, no crossflow)",
+                 "layered_fractional_flow": "Layered fractional flow (no crossflow)"}
+#: V and layer count shown while layers are off.
+LAYER_DEFAULTS = {"layer_v": 0.6, "layer_count": 10}
 
 
 def demo_scenario() -> dict:
@@ -125,7 +135,31 @@ def controls_from_scenario(scenario: dict) -> dict:
     if values.get("swi") is None:
         values["swi"] = _get(scenario, ("saturations", "swc"))
     values["mobility_ratio"] = float(f"{mobility_ratio_of(scenario):.4g}")
+    for name, default in LAYER_DEFAULTS.items():
+        if values.get(name) is None:
+            values[name] = default
+    values["layer_method"] = (scenario.get("layers") or {}).get("method", "none")
     return values
+
+
+def uses_layer_table(scenario: dict) -> bool:
+    """True when the scenario's layers come from a table (V and layer count do not apply)."""
+    return "table" in (scenario.get("layers") or {})
+
+
+def _integral(value):
+    return int(value) if isinstance(value, float) and value.is_integer() else value
+
+
+def _apply_layers(sc: dict, values: dict) -> None:
+    method = values.get("layer_method", (sc.get("layers") or {}).get("method", "none"))
+    if method in (None, "none"):
+        sc.pop("layers", None)
+    elif uses_layer_table(sc):
+        sc["layers"]["method"] = method
+    else:
+        sc["layers"] = {"method": method, "variation": {"v": values.get("layer_v"),
+                                                        "count": _integral(values.get("layer_count"))}}
 
 
 def uses_corey(scenario: dict) -> bool:
@@ -158,7 +192,10 @@ def scenario_from_controls(base: dict, values: dict, derive_oil_viscosity: bool)
             continue
         if c.name == "rate_bwpd" and not uses_constant_rate(sc):
             continue
+        if c.name in LAYER_CONTROLS:
+            continue
         _set(sc, c.path, values[c.name])
+    _apply_layers(sc, values)
     if derive_oil_viscosity:
         sc["fluids"]["mu_o_cp"] = oil_viscosity_for_mobility_ratio(sc, values.get("mobility_ratio"))
     return sc
@@ -270,7 +307,7 @@ def result_sheets(scenario: dict, result) -> dict:
     layers = getattr(result, "layers", None)
     if layers is not None:
         sheets["layers"] = layers.layer_table
-        sheets["layer breakthrough"] = layers.breakthrough_table
+        sheets["layer breakthroughs"] = layers.breakthrough_table
     return sheets
 
 
@@ -335,21 +372,41 @@ def format_quantity(key: str, value) -> str:
 # Layers (present once the scenario schema has the ``layers`` key)
 
 
-def layers_supported() -> bool:
-    """True when the scenario schema accepts a ``layers`` key (layered-reservoir model installed)."""
-    from flood.scenario import Scenario
-
-    return "layers" in Scenario.model_fields
-
-
 def scenario_with_layer_table(base: dict, contents: str, filename: str) -> dict:
-    """The base scenario with its layers replaced by an uploaded layer table CSV."""
-    if not layers_supported():
-        raise FloodInputError(filename or "layer table", "(CSV)", "a version of flood with the layered model")
-    from flood.scenario import read_layer_csv_text  # noqa: PLC0415 (arrives with the layered model)
+    """The base scenario with its layers replaced by an uploaded layer CSV (thickness_ft, permeability_md[, porosity]).
+
+    The layer method stays as chosen (Dykstra-Parsons when layers were off).
+    """
+    from flood.scenario import read_layer_csv_text
 
     text = decode_upload(contents, filename, "layer table CSV")
+    h, k, phi = read_layer_csv_text(text, field_name=filename or "layer CSV")
+    rows = []
+    for hi, ki, pi in zip(h, k, phi):
+        row = {"thickness_ft": float(hi), "permeability_md": float(ki)}
+        if math.isfinite(pi):
+            row["porosity"] = float(pi)
+        rows.append(row)
     sc = copy.deepcopy(base)
-    sc["layers"] = {"table": read_layer_csv_text(text, field_name=filename or "layer CSV")}
+    method = (sc.get("layers") or {}).get("method", "dykstra_parsons")
+    sc["layers"] = {"method": method, "table": rows}
     evaluate(sc, points=2)
     return sc
+
+
+def scenario_with_layer_variation(base: dict) -> dict:
+    """The base scenario with an uploaded layer table dropped (layers from V and count again)."""
+    sc = copy.deepcopy(base)
+    if uses_layer_table(sc):
+        sc["layers"] = {"method": sc["layers"]["method"], "variation": {"v": LAYER_DEFAULTS["layer_v"],
+                                                                         "count": LAYER_DEFAULTS["layer_count"]}}
+    return sc
+
+
+def days_at_pvi(scenario: dict, pvi: float) -> float:
+    """Days since injection start when ``pvi`` pore volumes have been injected (engine injection plan)."""
+    from flood.forecast import pore_volume
+
+    case = build_case(parse_scenario(scenario))
+    vp = float(pore_volume(case.area_acres, case.thickness_ft, case.porosity))
+    return float(case.injection.days_at_cumulative(pvi * vp / case.bw))

@@ -21,7 +21,8 @@ _BOXES = tuple(ids.box(n) for n in CONTROL_NAMES)
 #: Keys of the dict returned by :func:`compute_view`, in the order of the registered outputs.
 VIEW_KEYS = ("fig_rate_cut", "fig_fractional_flow", "fig_recovery", "fig_wor", "fig_profile", "cards",
              "field_messages", "general_message", "current", "mobility_ratio_box", "mu_o_box", "profile_max",
-             "profile_marks", "notes", "corey_button_style", "case_name", "layer_section")
+             "profile_marks", "notes", "corey_button_style", "case_name", "layer_section", "layer_note",
+             "layer_button_style")
 
 
 def _blank_view():
@@ -70,6 +71,10 @@ def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: se
     end = float(data["limits"]["max_pvi"])
     pvi = min(max(float(pvi or 0.0), 0.0), end)
     out["fig_profile"] = figures.profile_figure(result, pvi)
+    layers = getattr(result, "layers", None)
+    out["layer_section"] = [] if layers is None else components.layer_section(
+        figures.layer_fronts_figure(layers, adapter.days_at_pvi(data, pvi), pvi),
+        figures.layer_coverage_figure(layers), result.summary)
     if triggered == {ids.PROFILE_PVI}:
         return out
     pinned = adapter.pinned_results(pins or [])
@@ -90,9 +95,10 @@ def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: se
         out["mobility_ratio_box"] = float(f"{result.summary['endpoint_mobility_ratio']:.4g}")
     out["notes"] = _notes(data)
     out["corey_button_style"] = {} if not adapter.uses_corey(data) else {"display": "none"}
-    layers = getattr(result, "layers", None)
-    out["layer_section"] = [] if layers is None else components.layer_section(
-        figures.layer_fronts_figure(layers), figures.layer_coverage_figure(layers))
+    table = adapter.uses_layer_table(data)
+    out["layer_note"] = (f"Layer table in use ({len(data['layers']['table'])} layers): V and the layer count do "
+                         "not apply." if table else "")
+    out["layer_button_style"] = {} if table else {"display": "none"}
     return out
 
 
@@ -111,7 +117,7 @@ def update_view(*args):
     """Main callback: control boxes, base scenario, pins and profile PVI -> every view."""
     n = len(CONTROL_NAMES)
     values = dict(zip(CONTROL_NAMES, args[:n]))
-    base, pins, pvi = args[n:n + 3]
+    values["layer_method"], base, pins, pvi = args[n:n + 4]
     triggered = {p.rsplit(".", 1)[0] for p in (ctx.triggered_prop_ids or {})} if ctx else set()
     out = compute_view(values, base, pins, pvi, triggered)
     order = [o["id"]["field"] for o in ctx.outputs_list[VIEW_KEYS.index("field_messages")]]
@@ -123,7 +129,7 @@ def update_view(*args):
 # ----------------------------------------------------------------------------------------------
 
 
-LOAD_KEYS = ("base", "boxes", "msg_scenario", "msg_relperm", "msg_layers")
+LOAD_KEYS = ("base", "boxes", "method", "msg_scenario", "msg_relperm", "msg_layers")
 
 
 def load_files(trigger: str, contents, filename, current: dict, values: dict) -> dict:
@@ -138,15 +144,19 @@ def load_files(trigger: str, contents, filename, current: dict, values: dict) ->
         if trigger == ids.UPLOAD_SCENARIO:
             base = adapter.scenario_from_upload(contents, filename)
             out["boxes"] = adapter.controls_from_scenario(base)
+            out["method"] = out["boxes"]["layer_method"]
             out[key] = f"Loaded {filename}: {base.get('name', '')}"
         elif trigger == ids.UPLOAD_RELPERM:
             base = adapter.scenario_with_relperm_table(current, contents, filename)
             out[key] = f"Loaded {filename}: {len(base['relperm']['table'])} rows"
         elif trigger == ids.UPLOAD_LAYERS:
             base = adapter.scenario_with_layer_table(current, contents, filename)
-            out[key] = f"Loaded {filename}"
+            out["method"] = base["layers"]["method"]
+            out[key] = f"Loaded {filename}: {len(base['layers']['table'])} layers"
         elif trigger == ids.COREY_BUTTON:
             base = adapter.scenario_with_corey(current, values)
+        elif trigger == ids.LAYER_VARIATION_BUTTON:
+            base = adapter.scenario_with_layer_variation(current)
         else:
             return out
     except FloodInputError as err:
@@ -157,7 +167,7 @@ def load_files(trigger: str, contents, filename, current: dict, values: dict) ->
     return out
 
 
-def load_files_callback(scn, rp, lay, corey, scn_name, rp_name, lay_name, current, *box_values):
+def load_files_callback(scn, rp, lay, corey, layer_button, scn_name, rp_name, lay_name, current, *box_values):
     """Registered wrapper of :func:`load_files`."""
     trigger = ctx.triggered_id
     contents = {ids.UPLOAD_SCENARIO: (scn, scn_name), ids.UPLOAD_RELPERM: (rp, rp_name),
@@ -165,7 +175,7 @@ def load_files_callback(scn, rp, lay, corey, scn_name, rp_name, lay_name, curren
     out = load_files(trigger, contents[0], contents[1], current, dict(zip(CONTROL_NAMES, box_values)))
     boxes = out["boxes"]
     box_out = [no_update] * len(CONTROL_NAMES) if boxes is no_update else [boxes.get(n) for n in CONTROL_NAMES]
-    return (out["base"], *box_out, out["msg_scenario"], out["msg_relperm"], out["msg_layers"])
+    return (out["base"], *box_out, out["method"], out["msg_scenario"], out["msg_relperm"], out["msg_layers"])
 
 
 def update_pins(trigger, current: dict, pins: list, label: str):
@@ -245,18 +255,20 @@ def register(app) -> None:
         Output(ids.box("mobility_ratio"), "value"), Output(ids.box("mu_o_cp"), "value"),
         Output(ids.PROFILE_PVI, "max"), Output(ids.PROFILE_PVI, "marks"), Output(ids.RELPERM_NOTE, "children"),
         Output(ids.COREY_BUTTON, "style"), Output("case-name", "children"), Output(ids.LAYER_SECTION, "children"),
-        *[Input(b, "value") for b in _BOXES],
+        Output(ids.LAYER_NOTE, "children"), Output(ids.LAYER_VARIATION_BUTTON, "style"),
+        *[Input(b, "value") for b in _BOXES], Input(ids.LAYER_METHOD, "value"),
         Input(ids.BASE_STORE, "data"), Input(ids.PINS_STORE, "data"), Input(ids.PROFILE_PVI, "value"),
         prevent_initial_call=True,
     )(update_view)
 
     app.callback(
         Output(ids.BASE_STORE, "data"),
-        *[Output(b, "value", allow_duplicate=True) for b in _BOXES],
+        *[Output(b, "value", allow_duplicate=True) for b in _BOXES], Output(ids.LAYER_METHOD, "value"),
         Output(ids.UPLOAD_MESSAGE_SCENARIO, "children"), Output(ids.UPLOAD_MESSAGE_RELPERM, "children"),
         Output(ids.UPLOAD_MESSAGE_LAYERS, "children"),
         Input(ids.UPLOAD_SCENARIO, "contents"), Input(ids.UPLOAD_RELPERM, "contents"),
         Input(ids.UPLOAD_LAYERS, "contents"), Input(ids.COREY_BUTTON, "n_clicks"),
+        Input(ids.LAYER_VARIATION_BUTTON, "n_clicks"),
         State(ids.UPLOAD_SCENARIO, "filename"), State(ids.UPLOAD_RELPERM, "filename"),
         State(ids.UPLOAD_LAYERS, "filename"), State(ids.CURRENT_STORE, "data"),
         *[State(b, "value") for b in _BOXES],

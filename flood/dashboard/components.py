@@ -98,8 +98,13 @@ def graph(fig_id, figure=None):
                      className="graph")
 
 
-def layer_section(fronts_figure, coverage_figure) -> list:
+def layer_section(fronts_figure, coverage_figure, summary: dict) -> list:
     """Children of the layered-reservoir section (shown only when the case has layers)."""
-    return [html.H2("Layered reservoir"),
+    facts = (f"{summary.get('layer_count', '?')} layers; permeability variation V = "
+             f"{summary.get('dykstra_parsons_v', float('nan')):.3f} (log-probability fit R² = "
+             f"{summary.get('dykstra_parsons_v_r_squared', float('nan')):.3f}); k50 = "
+             f"{summary.get('k50_md', float('nan')):,.0f} md, k84.1 = {summary.get('k84_1_md', float('nan')):,.0f} md; "
+             f"vertical coverage at the economic limit {summary.get('vertical_coverage_at_economic_limit', float('nan')):.3f}.")
+    return [html.H2("Layered reservoir"), html.P(facts, className="muted", id="layer-facts"),
             html.Div([graph(ids.FIG_LAYER_FRONTS, fronts_figure), graph(ids.FIG_LAYER_COVERAGE, coverage_figure)],
                      className="figures")]

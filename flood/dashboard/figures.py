@@ -23,11 +23,13 @@ _SAT_POINTS = 201
 
 def _base(title: str, x_title: str, y_title: str, **layout) -> go.Figure:
     fig = go.Figure()
-    fig.update_layout(
+    settings = dict(
         title={"text": title, "x": 0.01, "font": {"size": 14}},
         template="plotly_white", margin={"l": 60, "r": 60, "t": 40, "b": 45}, height=320,
         legend={"orientation": "h", "y": -0.22, "x": 0, "font": {"size": 11}},
-        xaxis_title=x_title, yaxis_title=y_title, uirevision="keep", hovermode="x unified", **layout)
+        xaxis_title=x_title, yaxis_title=y_title, uirevision="keep", hovermode="x unified")
+    settings.update(layout)
+    fig.update_layout(**settings)
     return fig
 
 
@@ -137,30 +139,32 @@ def wor_figure(result, pinned=()) -> go.Figure:
     return fig
 
 
-def layer_fronts_figure(layers) -> go.Figure:
-    """Front position of each layer at the time the most permeable layer breaks through."""
+def layer_fronts_figure(layers, days: float, pvi: float) -> go.Figure:
+    """Water-front position of each layer at ``days`` (``pvi`` pore volumes injected), layered model."""
     lt = layers.layer_table
-    fig = _base("Layer fronts", "Front position x/L [-]", "Layer", hovermode="closest")
-    x_col = next((c for c in lt.columns if "front" in c.lower()), None)
-    y = [str(v) for v in lt[lt.columns[0]]]
-    if x_col is not None:
-        fig.add_trace(go.Bar(x=lt[x_col].to_numpy(), y=y, orientation="h", marker={"color": CURRENT},
-                             name=x_col))
-    fig.update_xaxes(range=[0, 1])
+    front = np.asarray(layers.front_positions([days]))[0]
+    labels = [f"{int(n)}: {k:,.0f} md" for n, k in zip(lt["layer"], lt["permeability_md"])]
+    fig = _base(f"Layer fronts at {pvi:.2f} PV injected ({days:,.0f} days)", "Front position x/L [-]",
+                "Layer (permeability)", hovermode="closest")
+    colors = [SECOND if f >= 1.0 else CURRENT for f in front]
+    fig.add_trace(go.Bar(x=front, y=labels, orientation="h", marker={"color": colors}, name="front",
+                         hovertemplate="%{y}: x/L = %{x:.3f}<extra></extra>"))
+    fig.update_layout(xaxis_range=[0, 1.0], yaxis={"autorange": "reversed", "type": "category"},
+                      showlegend=False, bargap=0.25)
     return fig
 
 
 def layer_coverage_figure(layers) -> go.Figure:
-    """Vertical coverage versus producing water-oil ratio (layered model)."""
+    """Vertical coverage versus surface water-oil ratio (layered model), breakthroughs marked."""
+    cov = layers.coverage_table
     bt = layers.breakthrough_table
-    cov = next((c for c in bt.columns if "coverage" in c.lower()), None)
-    wor = next((c for c in bt.columns if "wor" in c.lower()), None)
-    fig = _base("Vertical coverage versus WOR", "Water-oil ratio [STB/STB]", "Vertical coverage [fraction]",
-                hovermode="closest")
-    fig.update_xaxes(type="log")
-    if cov and wor:
-        keep = bt[wor].to_numpy() > 0
-        fig.add_trace(go.Scatter(x=bt[wor].to_numpy()[keep], y=bt[cov].to_numpy()[keep], mode="lines+markers",
-                                 name="coverage", line={"color": CURRENT, "width": 2.4}))
-    fig.update_yaxes(range=[0, 1.02])
+    fig = _base("Vertical coverage versus water-oil ratio", "Water-oil ratio [STB/STB]",
+                "Vertical coverage [fraction]", hovermode="closest")
+    keep = cov["wor_surface"].to_numpy() > 0
+    fig.add_trace(go.Scatter(x=cov["wor_surface"].to_numpy()[keep], y=cov["vertical_coverage"].to_numpy()[keep],
+                             mode="lines", name="coverage", line={"color": CURRENT, "width": 2.4}))
+    keep = bt["wor_surface"].to_numpy() > 0
+    fig.add_trace(go.Scatter(x=bt["wor_surface"].to_numpy()[keep], y=bt["vertical_coverage"].to_numpy()[keep],
+                             mode="markers", name="layer breakthrough", marker={"color": MARK, "size": 7}))
+    fig.update_layout(xaxis_type="log", yaxis_range=[0, 1.02])
     return fig

@@ -27,6 +27,9 @@ FIG_WOR = "fig-wor"
 FIG_LAYER_FRONTS = "fig-layer-fronts"
 FIG_LAYER_COVERAGE = "fig-layer-coverage"
 LAYER_SECTION = "layer-section"
+LAYER_METHOD = "layer-method"
+LAYER_NOTE = "layer-note"
+LAYER_VARIATION_BUTTON = "layer-variation"
 
 MAIN_FIGURES = (FIG_FRACTIONAL_FLOW, FIG_PROFILE, FIG_RECOVERY, FIG_RATE_CUT, FIG_WOR)
 

@@ -6,7 +6,7 @@ from dash import dcc, html
 
 from . import components, ids
 from .components import graph as _graph
-from .adapter import CONTROLS, controls_from_scenario, demo_scenario, evaluate, layers_supported
+from .adapter import CONTROLS, LAYER_CONTROLS, LAYER_METHODS, controls_from_scenario, demo_scenario, evaluate
 
 
 def build_layout(extra_sections=()) -> html.Div:
@@ -16,7 +16,9 @@ def build_layout(extra_sections=()) -> html.Div:
     demo = demo_scenario()
     values = controls_from_scenario(demo)
     _, result = evaluate(demo)
-    explore = [components.control_row(c, values[c.name]) for c in CONTROLS if c.slider]
+    explore = [components.control_row(c, values[c.name]) for c in CONTROLS
+               if c.slider and c.name not in LAYER_CONTROLS]
+    layer_rows = [components.control_row(c, values[c.name]) for c in CONTROLS if c.name in LAYER_CONTROLS]
     panel = [components.control_row(c, values[c.name]) for c in CONTROLS if not c.slider]
     sidebar = html.Aside([
         html.H2("Explore"),
@@ -27,6 +29,14 @@ def build_layout(extra_sections=()) -> html.Div:
         html.Div(id=ids.RELPERM_NOTE, className="note"),
         html.Button("Back to Corey curves", id=ids.COREY_BUTTON, n_clicks=0, className="small-button",
                     style={"display": "none"}),
+        html.Details([html.Summary("Layers"),
+                      dcc.RadioItems(id=ids.LAYER_METHOD, value=values["layer_method"], className="radio",
+                                     options=[{"label": v, "value": k} for k, v in LAYER_METHODS.items()]),
+                      *layer_rows,
+                      html.Div(id=ids.LAYER_NOTE, className="note"),
+                      html.Button("Use V and layer count", id=ids.LAYER_VARIATION_BUTTON, n_clicks=0,
+                                  className="small-button", style={"display": "none"})],
+                     open=True, className="panel"),
         html.Details([html.Summary("Reservoir and fluids"), *panel], open=True, className="panel"),
     ], className="sidebar")
     main = html.Main([
@@ -63,9 +73,9 @@ def build_layout(extra_sections=()) -> html.Div:
                                       ".json,application/json"),
                 components.upload_box(ids.UPLOAD_RELPERM, ids.UPLOAD_MESSAGE_RELPERM,
                                       "Load relative permeability CSV (sw, krw, kro)", ".csv,text/csv"),
-                html.Div(components.upload_box(ids.UPLOAD_LAYERS, ids.UPLOAD_MESSAGE_LAYERS,
-                                               "Load layer table CSV", ".csv,text/csv"),
-                         style={} if layers_supported() else {"display": "none"}),
+                components.upload_box(ids.UPLOAD_LAYERS, ids.UPLOAD_MESSAGE_LAYERS,
+                                      "Load layer table CSV (thickness_ft, permeability_md, porosity)",
+                                      ".csv,text/csv"),
             ], className="uploads"),
             html.P(components.upload_cap_text() + " Files are checked exactly as by the command line; a rejected "
                    "file leaves the current case as it was.", className="muted"),

@@ -185,3 +185,22 @@ def test_gunicorn_serves_the_dashboard(open_session, gunicorn_url):
     _press_mobility(s, "PageDown")
     s.wait_card_change("breakthrough_days", bt)
     assert s.errors == []
+
+
+def test_layered_view_appears_and_follows_v(session):
+    page = session.page
+    assert page.locator("#fig-layer-fronts").count() == 0
+    page.click("text=Dykstra-Parsons (piston-like")
+    page.wait_for_selector("#fig-layer-fronts .js-plotly-plot", timeout=10_000)
+    facts = page.inner_text("#layer-facts")
+    assert "10 layers" in facts and "V = 0.600" in facts
+    bt = session.card("breakthrough_days")
+    handle = page.locator("#layer_v-slider [role=slider]")
+    handle.focus()
+    page.keyboard.press("ArrowRight")
+    session.wait_card_change("breakthrough_days", bt)
+    page.wait_for_function("() => document.querySelector('#layer-facts').innerText.includes('V = 0.610')",
+                           timeout=10_000)
+    page.click("text=None (one homogeneous layer)")
+    page.wait_for_selector("#fig-layer-fronts", state="detached", timeout=10_000)
+    assert session.errors == []
