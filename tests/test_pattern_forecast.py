@@ -1,0 +1,62 @@
+"""Pattern forecast = stream tubes (areal sweep) x Buckley-Leverett/Welge displacement (x layers)."""
+
+from __future__ import annotations
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from flood.errors import FloodInputError
+from flood.forecast import forecast_table
+from flood.numerical.sweep import ArealSweepResult, streamline_sweep
+from flood.pattern_forecast import pattern_forecast, stream_tubes
+from flood.scenario import build_case, parse_scenario
+
+
+@pytest.fixture
+def case(demo_dict):
+    return build_case(parse_scenario(demo_dict))
+
+
+def _one_tube():
+    curve = pd.DataFrame({"pvi": [0.0, 1.0], "areal_sweep": [0.0, 1.0], "fd": [0.0, 1.0]})
+    return ArealSweepResult("linear", None, 1.0, "test", None, 1.0, 1.0, curve, 0.0,
+                            tube_flux=np.array([1.0]), tube_time=np.array([1.0]))
+
+
+def test_single_tube_reproduces_the_linear_forecast(case):
+    """One tube of the whole pore volume is the 1D Welge forecast (independent path: forecast_table)."""
+    pf = pattern_forecast(case, _one_tube(), points=50, end_pvi=2.0)
+    lin = forecast_table(case, points=50, end_pvi=2.0)
+    rf = np.interp(pf["pvi"], lin["pvi"], lin["recovery_factor"])
+    assert np.allclose(pf["recovery_factor"], rf, atol=1e-6)
+
+
+def test_pattern_recovers_less_early_and_converges_late(case):
+    sweep = streamline_sweep("five_spot", cells=50, lines=1000)
+    pf = pattern_forecast(case, sweep, points=60, end_pvi=6.0)
+    lin = pattern_forecast(case, _one_tube(), points=60, end_pvi=6.0)
+    assert np.all(pf["recovery_factor"].to_numpy()[1:] <= lin["recovery_factor"].to_numpy()[1:] + 1e-9)
+    assert pf["recovery_factor"].iloc[-1] == pytest.approx(lin["recovery_factor"].iloc[-1], abs=0.02)
+    assert np.all(np.diff(pf["days"]) > 0)
+
+
+def test_tubes_from_curve_keep_volume():
+    from flood.areal_sweep import correlation_sweep
+
+    w, tau = stream_tubes(correlation_sweep("five_spot", mobility_ratio=2.0), tubes=400)
+    assert w.sum() == pytest.approx(1.0) and np.sum(w * tau) == pytest.approx(1.0)
+
+
+def test_equal_layers_equal_one_layer(case):
+    sweep = _one_tube()
+    a = pattern_forecast(case, sweep, points=30, layers=[(100.0, 10.0), (100.0, 20.0)])
+    b = pattern_forecast(case, sweep, points=30)
+    assert np.allclose(a["recovery_factor"], b["recovery_factor"])
+    c = pattern_forecast(case, sweep, points=30, layers=[(300.0, 10.0), (30.0, 10.0)])
+    assert c["recovery_factor"].iloc[10] < b["recovery_factor"].iloc[10]  # layering delays recovery
+
+
+def test_errors(case):
+    with pytest.raises(FloodInputError, match=r"layers = .*rows of \(permeability_md > 0, thickness_ft > 0\)"):
+        pattern_forecast(case, _one_tube(), layers=[(-1.0, 2.0)])
