@@ -459,10 +459,11 @@ class LayerDisplacement:
         after = np.where(q > qn[-1], jn[-1] + (q - qn[-1]) * i_n[-1], np.interp(q, qn, jn))
         return np.where(q < self.breakthrough_pvi, q * (a * q + b), after)
 
-    def at_j(self, j, columns=5):
+    def at_j(self, j, columns=5, exact=False):
         """Layer state where J(Q) = ``j``: Q, I, outlet Sw, outlet fw, average Sw (tuple of arrays).
 
-        ``columns`` = 2 returns only (Q, I) (used inside Newton iterations).
+        ``columns`` = 2 returns only (Q, I) (used inside Newton iterations). ``exact`` takes the
+        outlet values from the Buckley-Leverett solution itself instead of the table.
         """
         j = np.asarray(j, dtype=float)
         a, b = self._quadratic()
@@ -486,6 +487,8 @@ class LayerDisplacement:
                    self.swi, self.fw_initial, self.swi + q * (1.0 - self.fw_initial))
             for c in range(1, columns):
                 cols[c] = np.where(before, pre[c - 1], cols[c])
+        if exact and columns == 5 and self.solution is not None:
+            cols[2:] = self.solution.outlet(cols[0])
         return tuple(cols)
 
     def pvi_at(self, j):
@@ -630,9 +633,9 @@ class LayerStack:
         """Common time τ at which each layer breaks through, J(Q_bt)/c_i."""
         return self.displacement.j_breakthrough / self.speed
 
-    def _at(self, tau, columns=5):
+    def _at(self, tau, columns=5, exact=False):
         tau = np.asarray(tau, dtype=float)
-        return self.displacement.at_j(tau[..., None] * self.speed, columns)
+        return self.displacement.at_j(tau[..., None] * self.speed, columns, exact)
 
     def layer_pvi(self, tau):
         """Each layer's own PVI at common time(s) ``tau``: shape ``tau.shape + (n_layers,)``."""
@@ -682,7 +685,7 @@ class LayerStack:
             tau = np.clip(tau - f / d, lo, hi)
         return np.where(pvi <= 0, 0.0, tau)
 
-    def state(self, tau):
+    def state(self, tau, exact=False):
         """Field state at common time(s) ``tau``: dict of arrays (layer arrays have a last axis).
 
         Keys ``q`` (layer PVI), ``front`` (layer front xD), ``share`` (fraction of the injection
@@ -690,35 +693,42 @@ class LayerStack:
         ``pvi``, ``fw`` (reservoir fw of the produced stream), ``sw_outlet`` (flow-weighted outlet
         saturation), ``sbar`` (pore-volume-weighted average saturation), ``coverage``.
         """
-        q, res, s_out, fw, sbar = self._at(tau)
+        q, res, s_out, fw, sbar = self._at(tau, 5, exact)
         flow = self.conductance / res
         share = flow / flow.sum(axis=-1, keepdims=True)
+        water, oil = np.sum(share * fw, axis=-1), np.sum(share * (1.0 - fw), axis=-1)
         front = np.minimum(q / self.displacement.breakthrough_pvi, 1.0)
         return {"q": q, "front": front, "share": share, "fw_layer": fw, "sw_outlet_layer": s_out,
-                "sbar_layer": sbar, "pvi": q @ self.pore_fraction, "fw": np.sum(share * fw, axis=-1),
+                "sbar_layer": sbar, "pvi": q @ self.pore_fraction, "fw": water / (water + oil),
                 "sw_outlet": np.sum(share * s_out, axis=-1), "sbar": sbar @ self.pore_fraction,
-                "coverage": front @ self.pore_fraction}
+                "coverage": front @ self.pore_fraction, "pore_fraction": self.pore_fraction}
 
-    def first_tau_reaching(self, fw_target, tau_grid, fw_grid=None, levels=5, m=32):
-        """Earliest τ on or after which the field fw reaches ``fw_target`` (nested grid search).
+    def first_tau_reaching(self, fw_target, tau_grid, fw_grid=None, levels=6, m=16):
+        """Earliest τ at which the field reservoir fw reaches ``fw_target`` (nested grid search).
 
         Returns ``inf`` if it is not reached on ``tau_grid``. The field fw jumps up at each
-        breakthrough and varies smoothly between them; the bracket is refined ``levels`` times on
-        ``m`` sub-intervals (relative resolution m^-levels of the first bracket).
+        breakthrough and varies smoothly between them. The first grid cell where the tabulated fw
+        reaches the target, widened by one cell each side, is refined ``levels`` times on ``m``
+        sub-intervals with the exact layer outlets (relative resolution 3 m^-levels of a cell).
         """
         fw = self.state(tau_grid)["fw"] if fw_grid is None else fw_grid
         hit = np.nonzero(fw >= fw_target)[0]
         if hit.size == 0:
             return float("inf")
         k = int(hit[0])
-        if k == 0:
-            return float(tau_grid[0])
-        lo, hi = float(tau_grid[k - 1]), float(tau_grid[k])
+        lo, hi = float(tau_grid[max(k - 2, 0)]), float(tau_grid[min(k + 1, tau_grid.size - 1)])
         for _ in range(levels):
             t = np.linspace(lo, hi, m + 1)
-            i = int(np.argmax(self.state(t[1:])["fw"] >= fw_target))
-            lo, hi = float(t[i]), float(t[i + 1])
-        return hi
+            reached = self.state(t, exact=True)["fw"] >= fw_target
+            if not reached.any():
+                return float(tau_grid[k])
+            i = int(np.argmax(reached))
+            if i == 0:
+                return float(t[0])
+            lo, hi = float(t[i - 1]), float(t[i])
+        jumps = self.breakthrough_tau * (1.0 + _EVENT_NUDGE)
+        at_jump = jumps[(jumps > lo) & (jumps <= hi)]
+        return float(at_jump.min()) if at_jump.size else hi   # reached at a breakthrough jump
 
 
 def layer_stack(layers: LayerSet, displacement: LayerDisplacement, area_acres: float = 1.0) -> LayerStack:
@@ -786,6 +796,10 @@ class LayeredResult:
             grid = self.stack.time_grid(self._tau_grid[-1] * float(np.max(pvi) / self._pvi_grid[-1]) * 2.0)
             return self.stack.tau_at_pvi(pvi, grid)
         return self.stack.tau_at_pvi(pvi, self._tau_grid, self._pvi_grid)
+
+    def layer_pvi(self, days):
+        """Each layer's own pore volumes injected at ``days`` [PV of the layer], shape ``(len(days), n)``."""
+        return self.stack.state(self._tau_at_days(np.atleast_1d(days)))["q"]
 
     def front_positions(self, days):
         """Water-front position xD of each layer at ``days`` [fraction of the length].
@@ -874,16 +888,18 @@ def layered_study(case, points: int = 400, solution: FrontSolution | None = None
         tau_top *= 2.0
     tau_grid = stack.time_grid(tau_top)
     grid = stack.state(tau_grid)
-    ev = {key: val[np.searchsorted(tau_grid, tau_ev)] for key, val in grid.items()}
+    ev = {key: val[np.searchsorted(tau_grid, tau_ev)] for key, val in grid.items() if key != "pore_fraction"}
     tau_e = stack.first_tau_reaching(fwe, tau_grid, grid["fw"])
-    at_e = stack.state(np.array([tau_e]))
+    at_e = stack.state(np.array([tau_e]), exact=True)
     pvi_e = float(at_e["pvi"][0])
     end_pvi = min(pvi_e, case.max_pvi)
 
     # Forecast rows: evenly spaced PVI plus each breakthrough inside the forecast.
     pvi_rows = np.linspace(0.0, end_pvi, points)
     tau_rows = stack.tau_at_pvi(pvi_rows, tau_grid, grid["pvi"])
-    inside = (ev["pvi"] > 0.0) & (ev["pvi"] < end_pvi)
+    if pvi_e <= case.max_pvi:
+        tau_rows[-1] = tau_e   # the last row is the economic-limit state itself
+    inside = (ev["pvi"] > 0.0) & (ev["pvi"] < end_pvi * (1.0 - 1e-9))
     tau_all = np.concatenate((tau_rows, tau_ev[inside]))
     tau_all = tau_all[np.argsort(np.concatenate((pvi_rows, ev["pvi"][inside])), kind="stable")]
     st = stack.state(tau_all)
@@ -912,7 +928,7 @@ def layered_study(case, points: int = 400, solution: FrontSolution | None = None
         "wor_reservoir": _ratio(st["fw"]), "wor_surface": table["wor"].to_numpy(),
         "water_cut": table["water_cut"].to_numpy()})
 
-    first = {k: v[0] for k, v in ev.items()}
+    first = {key: val[0] for key, val in ev.items()}
     pvi_bt = float(first["pvi"])
     summary = {
         "name": case.name,
@@ -959,7 +975,9 @@ def _ratio(fw):
 
 def _forecast_frame(case, st, pvi, vp, ooip, to_days):
     oil_rb = vp * np.maximum(st["sbar"] - case.swi, 0.0)
-    water_rb = vp * np.maximum(pvi - (st["sbar"] - case.swi), 0.0)
+    dry = (st["front"] < 1.0) & (st["fw_layer"] == 0.0)   # no water produced yet (exactly 0)
+    water_layer = np.where(dry, 0.0, st["q"] - (st["sbar_layer"] - case.swi))
+    water_rb = vp * np.maximum(water_layer @ st["pore_fraction"], 0.0)
     injected_bbl = pvi * vp / case.bw
     days = to_days(pvi)
     q_inj = case.injection.rate(days)
