@@ -703,32 +703,48 @@ class LayerStack:
                 "sw_outlet": np.sum(share * s_out, axis=-1), "sbar": sbar @ self.pore_fraction,
                 "coverage": front @ self.pore_fraction, "pore_fraction": self.pore_fraction}
 
-    def first_tau_reaching(self, fw_target, tau_grid, fw_grid=None, levels=6, m=16):
+    def first_tau_reaching(self, fw_target, tau_grid, fw_grid=None, m=16):
         """Earliest τ at which the field reservoir fw reaches ``fw_target`` (nested grid search).
 
         Returns ``inf`` if it is not reached on ``tau_grid``. The field fw jumps up at each
         breakthrough and varies smoothly between them. The first grid cell where the tabulated fw
-        reaches the target, widened by one cell each side, is refined ``levels`` times on ``m``
-        sub-intervals with the exact layer outlets (relative resolution 3 m^-levels of a cell).
+        reaches the target, widened by one cell each side, is refined three times on ``m``
+        sub-intervals with the tabulated outlets, then (around that, widened again) three times
+        with the exact layer outlets; a breakthrough jump inside the last bracket is taken exactly.
         """
         fw = self.state(tau_grid)["fw"] if fw_grid is None else fw_grid
         hit = np.nonzero(fw >= fw_target)[0]
         if hit.size == 0:
             return float("inf")
         k = int(hit[0])
-        lo, hi = float(tau_grid[max(k - 2, 0)]), float(tau_grid[min(k + 1, tau_grid.size - 1)])
+        bracket = (float(tau_grid[max(k - 2, 0)]), float(tau_grid[min(k + 1, tau_grid.size - 1)]))
+        coarse = self._refine(fw_target, *bracket, m, 3, exact=False)
+        if coarse is not None:
+            width = coarse[1] - coarse[0]
+            lo, hi = max(coarse[0] - 8 * width, bracket[0]), min(coarse[1] + 8 * width, bracket[1])
+            fine = self._refine(fw_target, lo, hi, m, 3, exact=True)
+            if fine is None or fine[0] == lo > bracket[0]:
+                fine = self._refine(fw_target, *bracket, m, 6, exact=True)
+        else:
+            fine = self._refine(fw_target, *bracket, m, 6, exact=True)
+        if fine is None:
+            return float(tau_grid[k])
+        jumps = self.breakthrough_tau * (1.0 + _EVENT_NUDGE)
+        at_jump = jumps[(jumps > fine[0]) & (jumps <= fine[1])]
+        return float(at_jump.min()) if at_jump.size else fine[1]   # reached at a breakthrough jump
+
+    def _refine(self, fw_target, lo, hi, m, levels, exact):
+        """Shrink [lo, hi] to the first sub-interval whose right end reaches the target (None if none)."""
         for _ in range(levels):
             t = np.linspace(lo, hi, m + 1)
-            reached = self.state(t, exact=True)["fw"] >= fw_target
+            reached = self.state(t, exact=exact)["fw"] >= fw_target
             if not reached.any():
-                return float(tau_grid[k])
+                return None
             i = int(np.argmax(reached))
             if i == 0:
-                return float(t[0])
+                return t[0], t[0]
             lo, hi = float(t[i - 1]), float(t[i])
-        jumps = self.breakthrough_tau * (1.0 + _EVENT_NUDGE)
-        at_jump = jumps[(jumps > lo) & (jumps <= hi)]
-        return float(at_jump.min()) if at_jump.size else hi   # reached at a breakthrough jump
+        return lo, hi
 
 
 def layer_stack(layers: LayerSet, displacement: LayerDisplacement, area_acres: float = 1.0) -> LayerStack:

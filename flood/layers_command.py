@@ -22,7 +22,8 @@ def _blank_non_finite(df: pd.DataFrame) -> pd.DataFrame:
     out = df.astype(object)
     for col in df.columns:
         if pd.api.types.is_float_dtype(df[col]):
-            out[col] = df[col].where(np.isfinite(df[col]), None).astype(object)
+            bad = ~np.isfinite(df[col].to_numpy())
+            out.loc[bad, col] = None
     return out
 
 
