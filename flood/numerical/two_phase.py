@@ -203,13 +203,16 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
         Safety factor on the explicit stability bound, 0 < cfl <= 1 [-].
     stop : callable, optional
         ``stop(time, sw, producer_fw) -> bool``; the run ends after the first step where it is true.
+        ``sw`` is the solver's working array, updated in place: copy it to keep it.
     progress : callable, optional
         ``progress(fraction)`` called as the run advances (fraction of ``end_time``, 0..1).
     pressure_update_ds : float, optional
-        Without gravity and capillarity, the pressure (and so the total flux) is solved again
-        only once some cell's saturation has changed by this much since the last solve; between
-        solves the water flux is the upstream fw times the held total flux. Default 0 (every
-        step) on a 1D grid, where a solve is cheap, and 0.05 otherwise [fraction].
+        Without gravity and capillarity on a grid that is not a chain of cells, the pressure
+        (and so the total flux) is solved again only once some cell's saturation has changed by
+        this much since the last solve; between solves the water flux is the upstream fw times
+        the held total flux. Default 0.05 [fraction]. On a chain (1D grid) without gravity and
+        capillarity the total flux is fixed by the well rates, so the pressure is solved once and
+        this setting is not needed.
     max_steps : int
         Safety limit on the number of steps.
 
@@ -233,6 +236,10 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
     Coats 2003). First order in space and time. Holding the total flux over several saturation
     steps is the usual "improved IMPES" economy (Chen, Huan & Li 2004, from memory); it keeps
     the scheme conservative because the held flux is divergence-free apart from the wells.
+    On a chain of cells without gravity and capillarity nothing is lost by holding it: the flux
+    through face k is exactly Σ_{i<=k} q_i whatever the mobilities (1D continuity, common
+    practice), so the one solve of the first step serves the whole run and, since the stability
+    bound then depends on the flux only, so does its time step (apart from landing on report times).
 
     References
     ----------
@@ -280,7 +287,6 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
     def touch(flux):  # sum over the faces of each cell
         return np.bincount(fl, flux, n) + np.bincount(fr, flux, n)
 
-    tsum = touch(trans)
     static_rate = touch(np.abs(trans * gz)) * gmax
     qinj = np.maximum(q, 0.0)
     qneg = np.minimum(q, 0.0)
@@ -288,6 +294,9 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
     total_production = float(-qneg.sum())
     has_extra = capillary is not None or bool(np.any(gz != 0.0))
     solver = PressureSolver(grid)
+    # On a chain of cells without gravity and capillarity the total flux on every face is fixed by
+    # the well rates alone (div of the flux equals q), so one pressure solve gives it for the run.
+    fixed_flux = solver.chain and not has_extra
     reports = np.sort(np.asarray([r for r in report_times if 0 < r <= end_time], dtype=float))
     report_out = [sw.copy() for r in np.asarray(report_times, dtype=float) if r <= 0]
     kept_times = [0.0 for r in np.asarray(report_times, dtype=float) if r <= 0]
@@ -303,31 +312,47 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
     end = end_time * (1 - 1e-12)
     sw_solved = None
     if pressure_update_ds is None:
-        pressure_update_ds = 0.0 if solver.chain else 0.05
+        pressure_update_ds = 0.05
+    # work arrays reused every step (the loop body allocates as little as possible)
+    lw, lo, lt, fcell, change = (np.empty(n) for _ in range(5))
+    face_fw = np.empty(fl.size)
+    producers = np.flatnonzero(qneg)
+    q_producers = qneg[producers]
+    tiny = np.finfo(float).tiny
+    dt_stable = None  # stability step of the held total flux (no capillarity), reused while held
     while t < end and steps < max_steps:
         krw, kro = relperm.kr(sw)
-        lw, lo = krw / mu_w, kro / mu_o
+        np.divide(krw, mu_w, out=lw)
+        np.divide(kro, mu_o, out=lo)
         if has_extra:
             extra = gz if capillary is None else gz + capillary_scale * (
                 (pc := capillary.pc(sw))[fl] - pc[fr])
-        lt = lw + lo
-        fcell = np.divide(lw, lt, out=np.zeros(n), where=lt > 0)
-        lagged = (not has_extra and sw_solved is not None
-                  and float(np.max(np.abs(sw - sw_solved))) < pressure_update_ds)
+        np.add(lw, lo, out=lt)
+        np.maximum(lt, tiny, out=lt)  # where λt = 0, λw = 0 too and fw = 0
+        np.divide(lw, lt, out=fcell)
+        if sw_solved is None or has_extra:
+            lagged = False
+        elif fixed_flux:
+            lagged = True
+        else:
+            np.subtract(sw, sw_solved, out=change)
+            lagged = float(np.max(np.abs(change, out=change))) < pressure_update_ds
         if lagged:
             # total flux held from the last pressure solve; water takes its upstream share
-            fw_flux = ft_flux * fcell[idx_o]
+            fcell.take(idx_o, out=face_fw)
+            fw_flux = np.multiply(face_fw, ft_flux, out=face_fw)
         else:
             sw_solved = sw.copy()
+            dt_stable = None
             for _ in range(_MAX_UPSTREAM_ITERATIONS):
-                lwf = lw[idx_w]
-                lof = lo[idx_o]
+                lwf = lw.take(idx_w)
+                lof = lo.take(idx_o)
                 # A face whose upstream cells hold neither phase mobile carries no flow; the floor
                 # (1e-12 of the largest mobility) only keeps the pressure matrix connected.
                 w = trans * np.maximum(lwf + lof, lam_floor)
                 rhs = q + div(trans * lwf * extra) if has_extra else q
                 p = solver.solve(w, rhs)
-                dp = p[fl] - p[fr]
+                dp = p.take(fl) - p.take(fr)
                 if has_extra:
                     dpw = dp - extra
                     tol = 1e-12 * (np.max(np.abs(dp)) + np.max(np.abs(extra)) + 1e-300)
@@ -345,24 +370,37 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
                 idx_w = np.where(up_w, fl, fr)
             fw_flux = trans * lwf * dpw
             ft_flux = fw_flux + trans * lof * dp
-        out = np.bincount(fl, np.maximum(ft_flux, 0.0), n) - np.bincount(fr, np.minimum(ft_flux, 0.0), n) - qneg
-        rate = out * fmax + static_rate
-        if capillary is not None:
-            # Local capillary bound: diffusion T h |dPc/dSw| (both neighbours) and the mobility
-            # derivative times the capillary pressure difference, h = λw,up λo,up/(λw,up + λo,up).
-            dpc = np.abs(capillary.dpc(sw)) * capillary_scale
-            h = lwf * lof / np.maximum(lwf + lof, lam_floor)
-            cap = trans * (2.0 * h * np.maximum(dpc[fl], dpc[fr]) + np.abs(extra - gz) * gmax)
-            rate = rate + touch(cap)
-        dt = cfl / float(np.max(rate / pv))
+        if dt_stable is None or capillary is not None:
+            out = (np.bincount(fl, np.maximum(ft_flux, 0.0), n) - np.bincount(fr, np.minimum(ft_flux, 0.0), n)
+                   - qneg)
+            rate = out * fmax + static_rate
+            if capillary is not None:
+                # Local capillary bound: diffusion T h |dPc/dSw| (both neighbours) and the mobility
+                # derivative times the capillary pressure difference, h = λw,up λo,up/(λw,up + λo,up).
+                dpc = np.abs(capillary.dpc(sw)) * capillary_scale
+                h = lwf * lof / np.maximum(lwf + lof, lam_floor)
+                cap = trans * (2.0 * h * np.maximum(dpc[fl], dpc[fr]) + np.abs(extra - gz) * gmax)
+                rate = rate + touch(cap)
+            dt_stable = cfl / float(np.max(rate / pv))
+        dt = dt_stable
         if ri < reports.size and t + dt >= reports[ri] * (1 - 1e-12):
             dt = reports[ri] - t
         if t + dt > end_time:
             dt = end_time - t
-        sw = np.clip(sw + dt * (qinj + qneg * fcell - div(fw_flux)) / pv, 0.0, 1.0)
+        # Sw += Δt (qinj + qprod fw - div Fw) / Vp, in place; then kept within [0, 1]
+        change = np.multiply(qneg, fcell, out=change)
+        change += qinj
+        outflow = np.bincount(fl, fw_flux, n)
+        outflow -= np.bincount(fr, fw_flux, n)
+        change -= outflow
+        change *= dt
+        change /= pv
+        sw += change
+        np.maximum(sw, 0.0, out=sw)
+        np.minimum(sw, 1.0, out=sw)
         t += dt
         steps += 1
-        rate_w = -float(qneg @ fcell)
+        rate_w = -float(q_producers @ fcell.take(producers))
         cum_w += dt * rate_w
         f_now = rate_w / total_production if total_production > 0 else np.nan
         times.append(t)
