@@ -116,8 +116,8 @@ def generate_layers(v, count, median_md, thickness_ft):
     Examples
     --------
     >>> h, k = generate_layers(0.5, 2, 100.0, 20.0)
-    >>> h.tolist(), [round(x, 3) for x in k]
-    ([10.0, 10.0], [159.55, 62.676])
+    >>> h.tolist(), [round(float(x), 3) for x in k]
+    ([10.0, 10.0], [159.603, 62.655])
     """
     if not (np.isfinite(v) and 0.0 <= v < 1.0):
         raise FloodInputError("layers.variation.v", v, "0 <= V < 1")
