@@ -6,6 +6,7 @@ import json
 
 import numpy as np
 import pandas as pd
+import plotly.graph_objects as go
 import pytest
 from dash import no_update
 
@@ -42,8 +43,8 @@ def test_view_of_demo_matches_engine(demo, values):
         assert cards[f"card-{key}"] == adapter.format_quantity(key, engine.summary[key])
     assert cards["card-breakthrough_pvi"] == "0.424"  # regression value of the demo (engine, 2026)
     fig = out["fig_fractional_flow"]
-    fw = fractional_flow(engine.solution.relperm, np.asarray(fig.data[0].x), 0.6, 3.0)
-    np.testing.assert_allclose(fig.data[0].y, fw, rtol=1e-12)
+    fw = fractional_flow(engine.solution.relperm, np.asarray(fig["data"][0]["x"]), 0.6, 3.0)
+    np.testing.assert_allclose(fig["data"][0]["y"], fw, rtol=1e-12)
     assert out["current"] == demo and out["general_message"] == ""
     assert all(m == "" for m in out["field_messages"].values())
 
@@ -52,21 +53,34 @@ def test_moving_mobility_ratio_changes_cards_and_figures(demo, values):
     first = callbacks.compute_view(values, demo, [], 0.3, set())
     values["mobility_ratio"] = 10.0
     out = callbacks.compute_view(values, demo, [], 0.3, {ids.box("mobility_ratio")})
-    assert out["mu_o_box"] == pytest.approx(10 * 0.6 * 0.9 / 0.35, rel=1e-4)
-    assert out["mobility_ratio_box"] is no_update
+    assert out["box_values"]["mu_o_cp"] == pytest.approx(10 * 0.6 * 0.9 / 0.35, rel=1e-4)
+    assert "mobility_ratio" not in out["box_values"] and out["slider_values"]["mobility_ratio"] == 1.0
     assert _card_texts(out["cards"])["card-endpoint_mobility_ratio"] == "10"
-    assert out["current"]["fluids"]["mu_o_cp"] == out["mu_o_box"]
+    assert out["current"]["fluids"]["mu_o_cp"] == out["box_values"]["mu_o_cp"]
     # unfavourable M: earlier breakthrough (Buckley & Leverett, 1942; Craig, 1971 - common practice)
     assert (out["current"] and run_study(build_case(parse_scenario(out["current"]))).summary["breakthrough_pvi"]
             < run_study(build_case(parse_scenario(first["current"]))).summary["breakthrough_pvi"])
-    assert not np.allclose(out["fig_rate_cut"].data[1].y[-5:], first["fig_rate_cut"].data[1].y[-5:])
+    assert not np.allclose(out["fig_rate_cut"]["data"][1]["y"][-5:], first["fig_rate_cut"]["data"][1]["y"][-5:])
 
 
 def test_changing_water_viscosity_keeps_oil_viscosity_and_moves_m(demo, values):
     values["mu_w_cp"] = 1.2
     out = callbacks.compute_view(values, demo, [], 0.3, {ids.box("mu_w_cp")})
     assert out["current"]["fluids"]["mu_o_cp"] == 3.0
-    assert out["mobility_ratio_box"] == pytest.approx((0.35 / 1.2) / (0.9 / 3.0), rel=1e-3)
+    assert out["box_values"]["mobility_ratio"] == pytest.approx((0.35 / 1.2) / (0.9 / 3.0), rel=1e-3)
+    assert "mu_o_cp" not in out["box_values"]
+
+
+def test_moving_a_slider_sets_its_box(demo, values):
+    sliders = {"mobility_ratio": 1.5, "nw": 3.3}
+    out = callbacks.compute_view(values, demo, [], 0.3, {ids.slider("mobility_ratio")}, sliders)
+    assert out["box_values"]["mobility_ratio"] == pytest.approx(31.62, abs=0.01)  # 10**1.5, 4 digits
+    assert out["box_values"]["mu_o_cp"] == pytest.approx(31.62 * 0.6 * 0.9 / 0.35, rel=1e-4)
+    out = callbacks.compute_view(values, demo, [], 0.3, {ids.slider("nw")}, sliders)
+    assert out["box_values"]["nw"] == 3.3 and out["current"]["relperm"]["nw"] == 3.3
+    values["nw"] = 9.0  # typed beyond the slider (the schema allows 1..10): slider pinned at its end
+    out = callbacks.compute_view(values, demo, [], 0.3, {ids.box("nw")}, sliders)
+    assert out["slider_values"]["nw"] == 6.0 and out["current"]["relperm"]["nw"] == 9.0
 
 
 def test_bad_value_shows_inline_message_and_keeps_case(demo, values):
@@ -81,15 +95,17 @@ def test_profile_slider_redraws_only_profile(demo, values):
     assert out["fig_profile"] is not no_update and out["fig_wor"] is no_update
     sol = run_study(build_case(parse_scenario(demo))).solution
     fig = out["fig_profile"]
-    np.testing.assert_allclose(fig.data[0].y, sol.profile(np.asarray(fig.data[0].x), 0.5))
+    np.testing.assert_allclose(fig["data"][0]["y"], sol.profile(np.asarray(fig["data"][0]["x"]), 0.5))
 
 
 def test_pinned_cases_are_overlaid(demo, values):
     pins = adapter.pin_case([], demo, "base")
     values["nw"] = 4.0
     out = callbacks.compute_view(values, demo, pins, 0.3, {ids.box("nw")})
-    names = [t.name for t in out["fig_recovery"].data]
-    assert "base" in names and any("base" in n for n in [t.name for t in out["fig_rate_cut"].data])
+    names = [t["name"] for t in out["fig_recovery"]["data"]]
+    assert "base" in names and any("base" in t["name"] for t in out["fig_rate_cut"]["data"])
+    for key in ("fig_recovery", "fig_rate_cut", "fig_wor", "fig_fractional_flow"):
+        go.Figure(out[key])  # plotly's own validation of every trace and layout key
 
 
 def test_load_scenario_upload_and_rejection(demo, values):
@@ -133,8 +149,9 @@ def test_figures_have_axis_titles_with_units(demo):
     _, result = adapter.evaluate(demo)
     for fig in (figures.fractional_flow_figure(result), figures.profile_figure(result, 0.2),
                 figures.recovery_figure(result), figures.rate_cut_figure(result), figures.wor_figure(result)):
-        assert "[" in fig.layout.xaxis.title.text and "[" in fig.layout.yaxis.title.text
-    assert figures.wor_figure(result).layout.yaxis.type == "log"
+        go.Figure(fig)  # a valid plotly figure (plotly's own validation)
+        assert "[" in fig["layout"]["xaxis"]["title"]["text"] and "[" in fig["layout"]["yaxis"]["title"]["text"]
+    assert figures.wor_figure(result)["layout"]["yaxis"]["type"] == "log"
     assert set(figures.PINNED) <= set(figures.OKABE_ITO.values())
 
 
@@ -148,14 +165,15 @@ def test_layered_view_appears_with_layers(demo, values, method):
     fronts, coverage = section[2].children[0].figure, section[2].children[1].figure
     result = run_study(build_case(parse_scenario(out["current"])), points=300)
     days = adapter.days_at_pvi(out["current"], 0.4)
-    np.testing.assert_allclose(fronts.data[0].x, result.layers.front_positions([days])[0])
-    assert len(fronts.data[0].y) == 6
-    assert coverage.layout.xaxis.type == "log"
+    np.testing.assert_allclose(fronts["data"][0]["x"], result.layers.front_positions([days])[0])
+    assert len(fronts["data"][0]["y"]) == 6
+    assert coverage["layout"]["xaxis"]["type"] == "log"
+    go.Figure(fronts), go.Figure(coverage)
     # the estimated V of 6 generated layers is reported (Dykstra & Parsons, 1950 definition via the engine)
     assert f"{result.summary['dykstra_parsons_v']:.3f}" in section[1].children
     values["layer_method"] = "none"
     off = callbacks.compute_view(values, demo, [], 0.4, {ids.LAYER_METHOD})
-    assert off["layer_section"] == [] and "layers" not in off["current"]
+    assert "Choose a layer method" in off["layer_section"].children and "layers" not in off["current"]
 
 
 def test_layer_count_must_be_whole(demo, values):

@@ -77,6 +77,24 @@ CONTROLS = (
 )
 
 CONTROL_NAMES = tuple(c.name for c in CONTROLS)
+
+
+def value_from_slider(control: Control, position: float):
+    """Control value at a slider position (10**position on a log slider, 4 significant digits)."""
+    if control.log:
+        return float(f"{10.0 ** position:.4g}")
+    if float(control.step).is_integer():
+        return int(round(position))
+    return round(float(position), 6)
+
+
+def slider_position(control: Control, value):
+    """Slider position showing ``value`` (clamped to the slider), or None for a non-number."""
+    if not isinstance(value, (int, float)) or not math.isfinite(value) or (control.log and value <= 0):
+        return None
+    position = math.log10(value) if control.log else value
+    lo, hi = (math.log10(control.lo), math.log10(control.hi)) if control.log else (control.lo, control.hi)
+    return min(max(position, lo), hi)
 _BY_PATH = {".".join(c.path): c.name for c in CONTROLS if c.path}
 COREY_CONTROLS = ("nw", "no", "krw_max", "kro_max")
 LAYER_CONTROLS = ("layer_v", "layer_count")

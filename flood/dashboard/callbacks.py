@@ -20,7 +20,7 @@ _BOXES = tuple(ids.box(n) for n in CONTROL_NAMES)
 
 #: Keys of the dict returned by :func:`compute_view`, in the order of the registered outputs.
 VIEW_KEYS = ("fig_rate_cut", "fig_fractional_flow", "fig_recovery", "fig_wor", "fig_profile", "cards",
-             "field_messages", "general_message", "current", "mobility_ratio_box", "mu_o_box", "profile_max",
+             "field_messages", "general_message", "current", "box_values", "slider_values", "profile_max",
              "profile_marks", "notes", "corey_button_style", "case_name", "layer_section", "layer_note",
              "layer_button_style")
 
@@ -29,13 +29,15 @@ def _blank_view():
     return {k: no_update for k in VIEW_KEYS}
 
 
-def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: set) -> dict:
+def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: set, sliders=None) -> dict:
     """Everything the main view shows for one set of control values.
 
     Parameters
     ----------
     values : dict
         Control name -> typed value (None when a box is empty or not a number).
+    sliders : dict, optional
+        Control name -> slider position; a moved slider (its id in ``triggered``) overrides its box.
     base : dict
         The loaded scenario (demo or upload).
     pins : list
@@ -52,7 +54,16 @@ def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: se
         messages change and the last good case stays on screen.
     """
     out = _blank_view()
-    derive = triggered == {ids.box("mobility_ratio")}
+    values, boxes, positions = dict(values), {}, {}
+    for c in _SLIDERS:
+        if ids.slider(c.name) in triggered and (sliders or {}).get(c.name) is not None:
+            values[c.name] = boxes[c.name] = adapter.value_from_slider(c, sliders[c.name])
+        elif ids.box(c.name) in triggered:
+            position = adapter.slider_position(c, values.get(c.name))
+            if position is not None:
+                positions[c.name] = position
+    out["box_values"], out["slider_values"] = boxes, positions
+    derive = bool(triggered) and triggered <= {ids.box("mobility_ratio"), ids.slider("mobility_ratio")}
     messages = {n: "" for n in CONTROL_NAMES}
     try:
         scenario = adapter.scenario_from_controls(base, values, derive_oil_viscosity=derive)
@@ -72,7 +83,7 @@ def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: se
     pvi = min(max(float(pvi or 0.0), 0.0), end)
     out["fig_profile"] = figures.profile_figure(result, pvi)
     layers = getattr(result, "layers", None)
-    out["layer_section"] = [] if layers is None else components.layer_section(
+    out["layer_section"] = components.no_layers_note() if layers is None else components.layer_section(
         figures.layer_fronts_figure(layers, adapter.days_at_pvi(data, pvi), pvi),
         figures.layer_coverage_figure(layers), result.summary)
     if triggered == {ids.PROFILE_PVI}:
@@ -90,9 +101,11 @@ def compute_view(values: dict, base: dict, pins: list, pvi: float, triggered: se
         case_name=data.get("name", ""),
     )
     if derive:
-        out["mu_o_box"] = data["fluids"]["mu_o_cp"]
+        boxes["mu_o_cp"] = data["fluids"]["mu_o_cp"]
     else:
-        out["mobility_ratio_box"] = float(f"{result.summary['endpoint_mobility_ratio']:.4g}")
+        m = float(f"{result.summary['endpoint_mobility_ratio']:.4g}")
+        boxes["mobility_ratio"] = m
+        positions["mobility_ratio"] = adapter.slider_position(CONTROLS[0], m)
     out["notes"] = _notes(data)
     out["corey_button_style"] = {} if not adapter.uses_corey(data) else {"display": "none"}
     table = adapter.uses_layer_table(data)
@@ -117,13 +130,17 @@ def update_view(*args):
     """Main callback: control boxes, base scenario, pins and profile PVI -> every view."""
     n = len(CONTROL_NAMES)
     values = dict(zip(CONTROL_NAMES, args[:n]))
-    values["layer_method"], base, pins, pvi = args[n:n + 4]
-    triggered = {p.rsplit(".", 1)[0] for p in (ctx.triggered_prop_ids or {})} if ctx else set()
-    out = compute_view(values, base, pins, pvi, triggered)
+    sliders = dict(zip((c.name for c in _SLIDERS), args[n:n + len(_SLIDERS)]))
+    values["layer_method"], base, pins, pvi = args[n + len(_SLIDERS):]
+    triggered = {p.rsplit(".", 1)[0] for p in (ctx.triggered_prop_ids or {})}
+    out = compute_view(values, base, pins, pvi, triggered, sliders)
     order = [o["id"]["field"] for o in ctx.outputs_list[VIEW_KEYS.index("field_messages")]]
     fm = out["field_messages"]
     out["field_messages"] = no_update if fm is no_update else [fm.get(k, "") for k in order]
-    return tuple(out[k] for k in VIEW_KEYS)
+    boxes, positions = out.pop("box_values"), out.pop("slider_values")
+    return (*(out[k] for k in VIEW_KEYS if k not in ("box_values", "slider_values")),
+            *(boxes.get(name, no_update) for name in CONTROL_NAMES),
+            *(positions.get(c.name, no_update) for c in _SLIDERS))
 
 
 # ----------------------------------------------------------------------------------------------
@@ -217,46 +234,19 @@ def download_callback(n_csv, n_xlsx, n_json, current):
     return download(ctx.triggered_id, current)
 
 
-_SYNC_JS = """
-function(sliderValue, boxValue) {
-    const dc = window.dash_clientside;
-    const trig = (dc.callback_context.triggered || []).map(t => t.prop_id);
-    const LOG = %(log)s;
-    if (trig.some(p => p.endsWith('-slider.value'))) {
-        if (sliderValue === null || sliderValue === undefined) { return [dc.no_update, dc.no_update]; }
-        const v = LOG ? Number(Math.pow(10, sliderValue).toPrecision(4)) : Number(sliderValue.toFixed(6));
-        return [dc.no_update, v];
-    }
-    if (typeof boxValue !== 'number' || !isFinite(boxValue) || (LOG && boxValue <= 0)) {
-        return [dc.no_update, dc.no_update];
-    }
-    const s = LOG ? Math.log10(boxValue) : boxValue;
-    return [Math.min(Math.max(s, %(lo)s), %(hi)s), dc.no_update];
-}
-"""
-
-
 def register(app) -> None:
     """Attach every callback to ``app``."""
-    import math
-
-    for c in _SLIDERS:
-        lo, hi = (math.log10(c.lo), math.log10(c.hi)) if c.log else (c.lo, c.hi)
-        app.clientside_callback(_SYNC_JS % {"log": "true" if c.log else "false", "lo": lo, "hi": hi},
-                                Output(ids.slider(c.name), "value"), Output(ids.box(c.name), "value"),
-                                Input(ids.slider(c.name), "value"), Input(ids.box(c.name), "value"),
-                                prevent_initial_call=True)
-
     app.callback(
         Output(ids.FIG_RATE_CUT, "figure"), Output(ids.FIG_FRACTIONAL_FLOW, "figure"),
         Output(ids.FIG_RECOVERY, "figure"), Output(ids.FIG_WOR, "figure"), Output(ids.FIG_PROFILE, "figure"),
         Output(ids.CARDS, "children"), Output(ids.field_message(ALL), "children"),
         Output(ids.GENERAL_MESSAGE, "children"), Output(ids.CURRENT_STORE, "data"),
-        Output(ids.box("mobility_ratio"), "value"), Output(ids.box("mu_o_cp"), "value"),
         Output(ids.PROFILE_PVI, "max"), Output(ids.PROFILE_PVI, "marks"), Output(ids.RELPERM_NOTE, "children"),
         Output(ids.COREY_BUTTON, "style"), Output("case-name", "children"), Output(ids.LAYER_SECTION, "children"),
         Output(ids.LAYER_NOTE, "children"), Output(ids.LAYER_VARIATION_BUTTON, "style"),
-        *[Input(b, "value") for b in _BOXES], Input(ids.LAYER_METHOD, "value"),
+        *[Output(b, "value") for b in _BOXES], *[Output(ids.slider(c.name), "value") for c in _SLIDERS],
+        *[Input(b, "value") for b in _BOXES], *[Input(ids.slider(c.name), "value") for c in _SLIDERS],
+        Input(ids.LAYER_METHOD, "value"),
         Input(ids.BASE_STORE, "data"), Input(ids.PINS_STORE, "data"), Input(ids.PROFILE_PVI, "value"),
         prevent_initial_call=True,
     )(update_view)

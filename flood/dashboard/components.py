@@ -94,7 +94,7 @@ def cases_table(pins: list) -> html.Div:
 
 def graph(fig_id, figure=None):
     """A dcc.Graph with our configuration."""
-    return dcc.Graph(id=fig_id, figure=figure or {}, config={"displaylogo": False, "responsive": True},
+    return dcc.Graph(id=fig_id, figure=figure or {}, config={"displaylogo": False}, responsive=False,
                      className="graph")
 
 
@@ -108,3 +108,9 @@ def layer_section(fronts_figure, coverage_figure, summary: dict) -> list:
     return [html.H2("Layered reservoir"), html.P(facts, className="muted", id="layer-facts"),
             html.Div([graph(ids.FIG_LAYER_FRONTS, fronts_figure), graph(ids.FIG_LAYER_COVERAGE, coverage_figure)],
                      className="figures")]
+
+
+def no_layers_note():
+    """Content of the layers tab for a homogeneous case."""
+    return html.P("Choose a layer method under Layers in the sidebar, or load a layer table, to see the "
+                  "layered view.", className="muted")

@@ -43,21 +43,24 @@ def build_layout(extra_sections=()) -> html.Div:
         html.Div(components.CAUTION, className="caution", id="caution"),
         html.Div(id=ids.GENERAL_MESSAGE, className="general-message", role="alert"),
         html.Div(components.summary_cards(result.summary), id=ids.CARDS, className="cards"),
-        html.Div([
-            _graph(ids.FIG_RATE_CUT, figures.rate_cut_figure(result)),
-            _graph(ids.FIG_FRACTIONAL_FLOW, figures.fractional_flow_figure(result)),
-            _graph(ids.FIG_RECOVERY, figures.recovery_figure(result)),
-            _graph(ids.FIG_WOR, figures.wor_figure(result)),
-            html.Div([
+        dcc.Tabs(id=ids.VIEW_TABS, value="production", className="tabs", children=[
+            dcc.Tab(label="Rates and water cut", value="production", children=html.Div([
+                _graph(ids.FIG_RATE_CUT, figures.rate_cut_figure(result)),
+                _graph(ids.FIG_WOR, figures.wor_figure(result))], className="figures")),
+            dcc.Tab(label="Displacement and recovery", value="displacement", children=html.Div([
+                _graph(ids.FIG_FRACTIONAL_FLOW, figures.fractional_flow_figure(result)),
+                _graph(ids.FIG_RECOVERY, figures.recovery_figure(result))], className="figures")),
+            dcc.Tab(label="Saturation profile", value="profile", children=html.Div([
                 _graph(ids.FIG_PROFILE, figures.profile_figure(result, 0.3)),
                 html.Label("Profile at pore volumes injected [total PV]", htmlFor=ids.PROFILE_PVI,
                            className="control-label"),
                 dcc.Slider(id=ids.PROFILE_PVI, min=0.0, max=float(demo["limits"]["max_pvi"]), step=0.01, value=0.3,
                            marks={0: "0", float(demo["limits"]["max_pvi"]): f"{demo['limits']['max_pvi']:g}"},
                            updatemode="mouseup", allow_direct_input=True, className="slider"),
-            ], className="graph-cell"),
-        ], className="figures"),
-        html.Div(id=ids.LAYER_SECTION, className="section-layers"),
+            ], className="graph-cell")),
+            dcc.Tab(label="Layers", value="layers", children=html.Div(
+                components.no_layers_note(), id=ids.LAYER_SECTION, className="section-layers")),
+        ]),
         html.Section([
             html.H2("Compare cases"),
             html.Div([dcc.Input(id=ids.PIN_LABEL, type="text", placeholder="label (optional)", maxLength=40,

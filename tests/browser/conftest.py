@@ -18,6 +18,8 @@ from pathlib import Path
 
 import pytest
 
+from flood.dashboard import ids
+
 ROOT = Path(__file__).resolve().parents[2]
 CHROMIUM = os.environ.get("FLOOD_CHROMIUM", "/usr/lib/chromium/chromium")
 CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
@@ -129,9 +131,17 @@ class Session:
         self.page.on("pageerror", lambda e: self.errors.append(str(e)))
         self.page.goto(url)
         self.page.wait_for_function(
-            "() => ['fig-rate-cut','fig-fractional-flow','fig-recovery','fig-wor','fig-profile']"
+            "() => ['fig-rate-cut','fig-wor']"
             ".every(id => { const g = document.querySelector('#' + id + ' .js-plotly-plot');"
             " return g && g._fullData && g._fullData.length > 0; })", timeout=FIRST_RENDER_MS)
+
+    def open_tab(self, label: str, figure_ids=()):
+        """Select a view tab and wait until its figures are drawn."""
+        self.page.locator(f"#{ids.VIEW_TABS}").get_by_text(label, exact=True).click()
+        for fig_id in figure_ids:
+            self.page.wait_for_function(
+                f"() => {{ const g = document.querySelector('#{fig_id} .js-plotly-plot');"
+                " return g && g._fullData && g._fullData.length > 0; }", timeout=10_000)
 
     def card(self, key: str) -> str:
         return self.page.inner_text(f"#card-{key}")

@@ -53,18 +53,27 @@ def test_page_loads_without_console_errors(session):
 def test_mobility_slider_by_keyboard_moves_cards_and_figures(session):
     bt_days = session.card("breakthrough_days")
     cut_before = session.trace_y("fig-rate-cut", 1)
-    fw_before = session.trace_y("fig-fractional-flow", 0)
+    wor_before = session.trace_y("fig-wor", 0)
     _press_mobility(session, "PageUp")  # a big step up in log10 M
     session.wait_card_change("breakthrough_days", bt_days)
     session.page.wait_for_function(
-        "(old) => Array.from(document.querySelector('#fig-fractional-flow .js-plotly-plot')._fullData[0].y)"
-        ".some((v, i) => Math.abs(v - old[i]) > 1e-9)", arg=fw_before, timeout=10_000)
+        "(old) => { const y = Array.from(document.querySelector('#fig-wor .js-plotly-plot')._fullData[0].y);"
+        " return y.length !== old.length || y.some((v, i) => Math.abs(v - old[i]) > 1e-9); }",
+        arg=wor_before, timeout=10_000)
     m = float(session.page.input_value("#mobility_ratio-box"))
     assert m > 1.95
     mu_o = float(session.page.input_value("#mu_o_cp-box"))
     assert mu_o == pytest.approx(m * 0.6 * 0.9 / 0.35, rel=1e-3)  # definition of endpoint M
     assert float(session.card("endpoint_mobility_ratio")) == pytest.approx(m, abs=0.006)  # card: 3 digits
     assert session.trace_y("fig-rate-cut", 1) != cut_before
+    # the fractional-flow view, drawn when its tab opens, shows the new case: fw at mu_o from the box
+    session.open_tab("Displacement and recovery", ["fig-fractional-flow", "fig-recovery"])
+    sw = session.page.evaluate(
+        "() => Array.from(document.querySelector('#fig-fractional-flow .js-plotly-plot')._fullData[0].x)")
+    from flood.fractional_flow import fractional_flow
+    from flood.relative_permeability import Corey
+    expected = fractional_flow(Corey(0.2, 0.25, 0.35, 0.9, 2.5, 2.0), np.asarray(sw), 0.6, mu_o)
+    np.testing.assert_allclose(session.trace_y("fig-fractional-flow", 0), expected, rtol=1e-9)
     assert session.errors == []
 
 
@@ -144,6 +153,7 @@ def test_scenario_json_round_trip(session):
 
 def test_pin_compare_and_remove(session):
     page = session.page
+    session.open_tab("Displacement and recovery", ["fig-recovery"])
     page.fill("#pin-label", "base case")
     page.click("#pin-case")
     page.wait_for_selector("table.cases td:has-text('base case')", timeout=10_000)
@@ -189,7 +199,9 @@ def test_gunicorn_serves_the_dashboard(open_session, gunicorn_url):
 
 def test_layered_view_appears_and_follows_v(session):
     page = session.page
+    session.open_tab("Layers")
     assert page.locator("#fig-layer-fronts").count() == 0
+    assert "Choose a layer method" in page.inner_text("#layer-section")
     page.click("text=Dykstra-Parsons (piston-like")
     page.wait_for_selector("#fig-layer-fronts .js-plotly-plot", timeout=10_000)
     facts = page.inner_text("#layer-facts")
