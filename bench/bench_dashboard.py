@@ -14,19 +14,16 @@ from __future__ import annotations
 import argparse
 import os
 import shutil
-import socket
 import statistics
-import subprocess
 import sys
 import tempfile
 import time
-import urllib.request
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
 sys.path.insert(0, str(ROOT))
 
-CHROMIUM = os.environ.get("FLOOD_CHROMIUM", "/usr/lib/chromium/chromium")
+from flood.dashboard.local_server import WAIT_FIGURES_JS, launch_chromium, served  # noqa: E402
 #: View tabs and the figures each one shows (only the selected tab's figures are in the page).
 TABS = {"Rates and water cut": ("fig-rate-cut", "fig-wor"),
         "Displacement and recovery": ("fig-fractional-flow", "fig-recovery"),
@@ -52,45 +49,18 @@ def percentile(values, q):
     return data[lo] + (data[hi] - data[lo]) * (k - lo)
 
 
-def _free_port():
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
-
-
-def _serve(gunicorn: bool, scratch: Path):
-    port = _free_port()
-    env = dict(os.environ, XDG_CONFIG_HOME=str(scratch), XDG_CACHE_HOME=str(scratch), TMPDIR=str(scratch))
-    cmd = ([sys.executable, "-m", "gunicorn", "app:server", "-b", f"127.0.0.1:{port}", "-w", "2",
-            "--no-control-socket"] if gunicorn else [sys.executable, "app.py", "--port", str(port)])
-    proc = subprocess.Popen(cmd, cwd=ROOT, env=env, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
-    url = f"http://127.0.0.1:{port}/"
-    for _ in range(300):
-        try:
-            urllib.request.urlopen(url, timeout=1)
-            return proc, url
-        except OSError:
-            time.sleep(0.2)
-    proc.kill()
-    raise SystemExit("server did not start")
-
-
 def browser_latency(url: str, changes: int, scratch: Path) -> dict[str, list[float]]:
     """Per view tab: keydown -> every figure of the tab re-plotted [ms], one value per slider change."""
     from playwright.sync_api import sync_playwright
 
-    env = dict(os.environ, XDG_CONFIG_HOME=str(scratch), XDG_CACHE_HOME=str(scratch), TMPDIR=str(scratch))
     out = {}
     with sync_playwright() as p:
-        b = p.chromium.launch(executable_path=CHROMIUM, headless=True, env=env,
-                              args=["--no-sandbox", "--disable-gpu", "--disable-dev-shm-usage", "--no-first-run"])
+        b = launch_chromium(p, scratch)
         page = b.new_page(viewport={"width": 1440, "height": 900})
         page.goto(url)
         for tab, figures in TABS.items():
             page.locator("#view-tabs").get_by_text(tab, exact=True).click()
-            page.wait_for_function(
-                "(ids) => ids.every(id => { const g = document.querySelector('#' + id + ' .js-plotly-plot');"
-                " return g && g._fullData && g._fullData.length; })", arg=list(figures), timeout=30_000)
+            page.wait_for_function(WAIT_FIGURES_JS, arg=list(figures), timeout=30_000)
             page.wait_for_timeout(300)
             page.evaluate(_LISTEN_JS, list(figures))
             page.locator("#mobility_ratio-slider [role=slider]").focus()
@@ -142,14 +112,10 @@ def main(argv=None):
     scratch = Path(tempfile.mkdtemp(prefix="flood-bench-"))
     try:
         _report("server-side main callback (engine + 5 figures + cards + JSON)", server_time(changes))
-        proc, url = _serve(args.gunicorn, scratch)
-        try:
+        with served("gunicorn" if args.gunicorn else "app", scratch) as url:
             server = "gunicorn -w 2" if args.gunicorn else "python app.py"
             for tab, times in browser_latency(url, changes, scratch).items():
                 _report(f"browser ({server}), M slider keydown -> every figure of tab '{tab}' redrawn", times)
-        finally:
-            proc.terminate()
-            proc.wait(timeout=10)
     finally:
         shutil.rmtree(scratch, ignore_errors=True)
     print(f"targets: median <= 100 ms, p95 <= 200 ms (machine: {os.cpu_count()} cores)")

@@ -94,7 +94,7 @@ def cases_table(pins: list) -> html.Div:
 
 def graph(fig_id, figure=None):
     """A dcc.Graph with our configuration."""
-    return dcc.Graph(id=fig_id, figure=figure or {}, config={"displaylogo": False}, responsive=False,
+    return dcc.Graph(id=fig_id, figure=figure or {}, config={"displaylogo": False}, responsive=True,
                      className="graph")
 
 

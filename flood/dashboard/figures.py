@@ -38,7 +38,7 @@ def _second_axis(title: str, **extra) -> dict:
 def _figure(title: str, x_axis: dict, y_axis: dict, hovermode="x unified", **layout) -> dict:
     return {"data": [], "layout": {
         "title": {"text": title, "x": 0.01, "font": {"size": 14}}, "font": _FONT,
-        "paper_bgcolor": "#ffffff", "plot_bgcolor": "#ffffff", "height": 360,
+        "paper_bgcolor": "#ffffff", "plot_bgcolor": "#ffffff", "autosize": True,
         "margin": {"l": 60, "r": 60, "t": 40, "b": 45}, "uirevision": "keep", "hovermode": hovermode,
         "legend": {"orientation": "h", "y": -0.22, "x": 0, "font": {"size": 11}},
         "xaxis": x_axis, "yaxis": y_axis, **layout}}

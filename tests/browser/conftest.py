@@ -2,36 +2,21 @@
 
 Needs the Debian packages ``chromium`` and ``chromium-driver`` (binary /usr/lib/chromium/chromium,
 override with $FLOOD_CHROMIUM) and the pip package ``playwright`` -- never ``playwright install``.
+Chromium and the servers run with XDG_CONFIG_HOME, XDG_CACHE_HOME and TMPDIR in a scratch folder.
 """
 
 from __future__ import annotations
 
-import os
 import shutil
-import socket
-import subprocess
-import sys
 import tempfile
-import time
-import urllib.request
 from pathlib import Path
 
 import pytest
 
 from flood.dashboard import ids
+from flood.dashboard.local_server import WAIT_FIGURES_JS, launch_chromium, served
 
-ROOT = Path(__file__).resolve().parents[2]
-CHROMIUM = os.environ.get("FLOOD_CHROMIUM", "/usr/lib/chromium/chromium")
-CHROMIUM_ARGS = ["--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
-                 "--disable-background-networking", "--disable-component-update", "--disable-sync",
-                 "--disable-dev-shm-usage"]
 FIRST_RENDER_MS = 20_000
-
-
-def free_port() -> int:
-    with socket.socket() as s:
-        s.bind(("127.0.0.1", 0))
-        return s.getsockname()[1]
 
 
 @pytest.fixture(scope="session")
@@ -42,80 +27,26 @@ def scratch():
     shutil.rmtree(path, ignore_errors=True)
 
 
-def scratch_env(scratch: Path) -> dict:
-    env = dict(os.environ)
-    for key in ("XDG_CONFIG_HOME", "XDG_CACHE_HOME", "TMPDIR"):
-        (scratch / key.lower()).mkdir(exist_ok=True)
-        env[key] = str(scratch / key.lower())
-    env["FLOOD_CACHE_DIR"] = str(scratch / "dash-cache")
-    env["PYTHONUNBUFFERED"] = "1"
-    return env
-
-
-def _wait_http(url: str, proc, timeout=60.0):
-    end = time.monotonic() + timeout
-    while time.monotonic() < end:
-        if proc.poll() is not None:
-            raise RuntimeError(f"server exited with {proc.returncode}: {proc.stdout.read()[-2000:]}")
-        try:
-            with urllib.request.urlopen(url, timeout=2) as r:
-                if r.status == 200:
-                    return
-        except OSError:
-            time.sleep(0.2)
-    raise RuntimeError(f"server at {url} did not answer within {timeout} s")
-
-
-def start_server(cmd: list, scratch: Path, port: int):
-    """Start a server subprocess and wait until its page answers; returns (process, base URL)."""
-    proc = subprocess.Popen(cmd, cwd=ROOT, env=scratch_env(scratch), stdout=subprocess.PIPE,
-                            stderr=subprocess.STDOUT, text=True)
-    url = f"http://127.0.0.1:{port}/"
-    try:
-        _wait_http(url, proc)
-    except BaseException:
-        proc.kill()
-        raise
-    return proc, url
-
-
-def stop_server(proc):
-    proc.terminate()
-    try:
-        proc.wait(timeout=10)
-    except subprocess.TimeoutExpired:
-        proc.kill()
-
-
 @pytest.fixture(scope="session")
 def app_url(scratch):
     """The dashboard served by ``python app.py --port N`` (as a user starts it)."""
-    port = free_port()
-    proc, url = start_server([sys.executable, "app.py", "--port", str(port)], scratch, port)
-    yield url
-    stop_server(proc)
+    with served("app", scratch) as url:
+        yield url
 
 
 @pytest.fixture(scope="session")
 def gunicorn_url(scratch):
     """The dashboard served by ``gunicorn app:server -w 2`` (as a team serves it)."""
-    port = free_port()
-    cmd = [sys.executable, "-m", "gunicorn", "app:server", "-b", f"127.0.0.1:{port}", "-w", "2",
-           "--no-control-socket"]
-    proc, url = start_server(cmd, scratch, port)
-    yield url
-    stop_server(proc)
+    with served("gunicorn", scratch) as url:
+        yield url
 
 
 @pytest.fixture(scope="session")
 def browser(scratch):
-    if not Path(CHROMIUM).exists():
-        pytest.fail(f"Chromium not found at {CHROMIUM}: apt-get install -y chromium chromium-driver")
     from playwright.sync_api import sync_playwright
 
     with sync_playwright() as p:
-        b = p.chromium.launch(executable_path=CHROMIUM, headless=True, args=CHROMIUM_ARGS,
-                              env=scratch_env(scratch))
+        b = launch_chromium(p, scratch)
         yield b
         b.close()
 
@@ -130,18 +61,12 @@ class Session:
         self.page.on("console", lambda m: self.errors.append(m.text) if m.type == "error" else None)
         self.page.on("pageerror", lambda e: self.errors.append(str(e)))
         self.page.goto(url)
-        self.page.wait_for_function(
-            "() => ['fig-rate-cut','fig-wor']"
-            ".every(id => { const g = document.querySelector('#' + id + ' .js-plotly-plot');"
-            " return g && g._fullData && g._fullData.length > 0; })", timeout=FIRST_RENDER_MS)
+        self.page.wait_for_function(WAIT_FIGURES_JS, arg=[ids.FIG_RATE_CUT, ids.FIG_WOR], timeout=FIRST_RENDER_MS)
 
     def open_tab(self, label: str, figure_ids=()):
         """Select a view tab and wait until its figures are drawn."""
         self.page.locator(f"#{ids.VIEW_TABS}").get_by_text(label, exact=True).click()
-        for fig_id in figure_ids:
-            self.page.wait_for_function(
-                f"() => {{ const g = document.querySelector('#{fig_id} .js-plotly-plot');"
-                " return g && g._fullData && g._fullData.length > 0; }", timeout=10_000)
+        self.page.wait_for_function(WAIT_FIGURES_JS, arg=list(figure_ids), timeout=10_000)
 
     def card(self, key: str) -> str:
         return self.page.inner_text(f"#card-{key}")
