@@ -23,12 +23,44 @@ def create_app(background_cache_dir: str | None = None):
     -------
     dash.Dash
     """
+    import functools
+
     from dash import Dash
 
     from . import callbacks, layout
 
+    patterns = numerical_patterns()
     app = Dash(__name__, title="flood: waterflood screening", assets_folder=str(ASSETS),
                update_title=None, serve_locally=True)
-    app.layout = layout.build_layout
+    app.layout = functools.partial(layout.build_layout, patterns)
     callbacks.register(app)
+    if patterns:
+        callbacks.register_background(app, background_manager(background_cache_dir))
     return app
+
+
+def numerical_patterns() -> tuple:
+    """Pattern names of the numerical views, or () when ``flood.numerical`` is not installed."""
+    try:
+        from flood.areal_sweep import areal_sweep  # noqa: F401
+        from flood.numerical.crosscheck import crosscheck_case  # noqa: F401
+        from flood.numerical.pattern import PATTERNS
+    except ImportError:
+        return ()
+    return tuple(PATTERNS)
+
+
+def background_manager(cache_dir: str | None = None):
+    """A DiskcacheManager on ``cache_dir`` (default $FLOOD_CACHE_DIR or <tmp>/flood-dash-cache).
+
+    Every web worker (e.g. each gunicorn worker) must use the same folder: the job handles are
+    signed with a secret kept in the cache.
+    """
+    import os
+    import tempfile
+
+    import diskcache
+    from dash import DiskcacheManager
+
+    folder = cache_dir or os.environ.get("FLOOD_CACHE_DIR") or os.path.join(tempfile.gettempdir(), "flood-dash-cache")
+    return DiskcacheManager(diskcache.Cache(folder))

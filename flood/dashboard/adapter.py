@@ -428,3 +428,81 @@ def days_at_pvi(scenario: dict, pvi: float) -> float:
     case = build_case(parse_scenario(scenario))
     vp = float(pore_volume(case.area_acres, case.thickness_ft, case.porosity))
     return float(case.injection.days_at_cumulative(pvi * vp / case.bw))
+
+
+# ----------------------------------------------------------------------------------------------
+# Numerical cross-check and pattern sweep (flood.numerical; run as background jobs)
+
+#: Areal-sweep methods offered (value -> label).
+SWEEP_METHODS = {"streamline": "Streamlines at M = 1",
+                 "numerical": "Finite volumes with this case's relative permeabilities",
+                 "correlation": "Fassihi (1986) correlation at this case's endpoint M"}
+
+
+def _number(field, value, lo, hi, integer=False):
+    ok = isinstance(value, (int, float)) and math.isfinite(value) and lo <= value <= hi
+    if integer and ok:
+        ok = float(value).is_integer()
+    if not ok:
+        kind = "a whole number" if integer else "a number"
+        raise FloodInputError(field, value, f"{kind} {lo:g} <= value <= {hi:g}")
+    return int(value) if integer else float(value)
+
+
+def run_crosscheck(scenario: dict, cells, entry_pressure_psi, pore_size_index, gravity: bool, progress=None):
+    """1D finite-volume cross-check of the scenario beside its Buckley-Leverett solution.
+
+    Parameters
+    ----------
+    cells : int
+        Grid cells, 10..5000 [-].
+    entry_pressure_psi : float
+        Brooks-Corey entry pressure Pe [psi]; 0 turns capillarity off.
+    pore_size_index : float
+        Brooks-Corey pore-size index λ [-], 0.1..10 (used when Pe > 0).
+    gravity : bool
+        Include the scenario's dip (gravity term).
+
+    Returns
+    -------
+    flood.numerical.crosscheck.CrosscheckResult
+    """
+    from flood.numerical.capillary import BrooksCoreyCapillary
+    from flood.numerical.crosscheck import crosscheck_case
+
+    cells = _number("cells", cells, 10, 5000, integer=True)
+    pe = _number("entry pressure", entry_pressure_psi, 0.0, 1000.0)
+    sc = parse_scenario(scenario)
+    case = build_case(sc)
+    capillary = None
+    if pe > 0:
+        lam = _number("pore-size index", pore_size_index, 0.1, 10.0)
+        capillary = BrooksCoreyCapillary(pe, lam, case.swc, case.sor)
+    return crosscheck_case(case, cells=cells, capillary=capillary, include_gravity=bool(gravity), progress=progress)
+
+
+def run_sweep(scenario: dict, pattern: str, d_over_a, method: str, cells, map_pvi, progress=None):
+    """Areal sweep of a repeated pattern for the scenario (method as in :data:`SWEEP_METHODS`).
+
+    Returns
+    -------
+    flood.numerical.sweep.ArealSweepResult
+    """
+    from flood.areal_sweep import areal_sweep
+    from flood.numerical.sweep import numerical_sweep
+
+    d_over_a = _number("d/a", d_over_a, 0.25, 10.0)
+    cells = _number("cells", cells, 10, 200, integer=True)
+    sc = parse_scenario(scenario)
+    case = build_case(sc)
+    max_pvi = float(min(max(sc.limits.max_pvi, 1.0), 5.0))
+    if method == "numerical":
+        map_pvi = _number("map PVI", map_pvi, 0.01, max_pvi)
+        return numerical_sweep(pattern, d_over_a=d_over_a, cells=cells, relperm=case.relperm, mu_w=case.mu_w,
+                               mu_o=case.mu_o, swi=case.swi, max_pvi=max_pvi, map_pvi=(map_pvi,), progress=progress)
+    if method == "correlation":
+        m = float(endpoint_mobility_ratio(case.relperm.krw_end, case.relperm.kro_end, case.mu_w, case.mu_o))
+        return areal_sweep(pattern, mobility_ratio=m, method="correlation", d_over_a=d_over_a, max_pvi=max_pvi)
+    if method == "streamline":
+        return areal_sweep(pattern, mobility_ratio=1.0, method="streamline", d_over_a=d_over_a, max_pvi=max_pvi)
+    raise FloodInputError("method", method, "one of " + ", ".join(SWEEP_METHODS))

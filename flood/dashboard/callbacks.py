@@ -278,3 +278,86 @@ def register(app) -> None:
         State(ids.CURRENT_STORE, "data"),
         prevent_initial_call=True,
     )(download_callback)
+
+
+# ----------------------------------------------------------------------------------------------
+# Numerical views (background jobs)
+
+
+def _progress_reporter(set_progress):
+    """engine progress(fraction) -> the progress bar, only when the whole percent changes."""
+    last = [-1]
+
+    def report(fraction):
+        pct = int(100 * min(max(float(fraction), 0.0), 1.0))
+        if pct != last[0]:
+            last[0] = pct
+            set_progress((pct,))
+
+    return report
+
+
+def crosscheck_outputs(current, cells, entry_pressure, pore_index, gravity, progress=None):
+    """1D cross-check -> (profiles figure, curve figure, message); a bad input changes only the message."""
+    try:
+        check = adapter.run_crosscheck(current, cells, entry_pressure, pore_index, bool(gravity), progress)
+    except FloodInputError as err:
+        return no_update, no_update, f"Not run: {err}"
+    s = check.summary()
+    msg = (f"{s['cells']} cells, {s['time_steps']} steps in {s['seconds_numerical']:.2f} s (analytic "
+           f"{1000 * s['seconds_analytic']:.1f} ms). Breakthrough {s['breakthrough_pvi_numerical']:.3f} PV "
+           f"(analytic {s['breakthrough_pvi_analytic']:.3f}); recovery at 2 PV {s['recovery_factor_at_2pvi_numerical']:.3f} "
+           f"(analytic {s['recovery_factor_at_2pvi_analytic']:.3f}); mean L1 profile difference "
+           f"{s['l1_profile_difference']:.4f}; capillarity: {s['capillary']}.")
+    return figures.crosscheck_profiles_figure(check), figures.crosscheck_curve_figure(check), msg
+
+
+def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=None):
+    """Pattern areal sweep -> (map figure, curve figure, message)."""
+    try:
+        sweep = adapter.run_sweep(current, pattern, d_over_a, method, cells, map_pvi, progress)
+    except FloodInputError as err:
+        return no_update, no_update, f"Not run: {err}"
+    msg = (f"{pattern.replace('_', ' ')}, {method}, M = {sweep.mobility_ratio:.3g}: areal sweep at breakthrough "
+           f"{sweep.areal_sweep_at_breakthrough:.3f} at {sweep.breakthrough_pvi:.3f} PV ({sweep.seconds:.2f} s).")
+    return figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep), msg
+
+
+def crosscheck_job(set_progress, n_clicks, current, cells, entry_pressure, pore_index, gravity):
+    """Background wrapper of :func:`crosscheck_outputs`."""
+    set_progress((0,))
+    return crosscheck_outputs(current, cells, entry_pressure, pore_index, bool(gravity),
+                              _progress_reporter(set_progress))
+
+
+def sweep_job(set_progress, n_clicks, current, pattern, d_over_a, method, cells, map_pvi):
+    """Background wrapper of :func:`sweep_outputs`."""
+    set_progress((0,))
+    out = sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, _progress_reporter(set_progress))
+    set_progress((100,))
+    return out
+
+
+def register_background(app, manager) -> None:
+    """Attach the numerical views' background callbacks (DiskcacheManager or CeleryManager)."""
+    app.callback(
+        Output(ids.NUM_FIGURE, "figure"), Output(ids.NUM_CURVE_FIGURE, "figure"), Output(ids.NUM_MESSAGE, "children"),
+        Input(ids.NUM_RUN, "n_clicks"),
+        State(ids.CURRENT_STORE, "data"), State(ids.NUM_CELLS, "value"), State(ids.NUM_ENTRY_PRESSURE, "value"),
+        State(ids.NUM_PORE_INDEX, "value"), State(ids.NUM_GRAVITY, "value"),
+        background=True, manager=manager, interval=200, prevent_initial_call=True,
+        progress=[Output(ids.NUM_PROGRESS, "value")],
+        running=[(Output(ids.NUM_RUN, "disabled"), True, False), (Output(ids.NUM_CANCEL, "disabled"), False, True)],
+        cancel=[Input(ids.NUM_CANCEL, "n_clicks")],
+    )(crosscheck_job)
+    app.callback(
+        Output(ids.SWEEP_FIGURE, "figure"), Output(ids.SWEEP_CURVE_FIGURE, "figure"),
+        Output(ids.SWEEP_MESSAGE, "children"),
+        Input(ids.SWEEP_RUN, "n_clicks"),
+        State(ids.CURRENT_STORE, "data"), State(ids.SWEEP_PATTERN, "value"), State(ids.SWEEP_D_OVER_A, "value"),
+        State(ids.SWEEP_METHOD, "value"), State(ids.SWEEP_CELLS, "value"), State(ids.SWEEP_MAP_PVI, "value"),
+        background=True, manager=manager, interval=200, prevent_initial_call=True,
+        progress=[Output(ids.SWEEP_PROGRESS, "value")],
+        running=[(Output(ids.SWEEP_RUN, "disabled"), True, False), (Output(ids.SWEEP_CANCEL, "disabled"), False, True)],
+        cancel=[Input(ids.SWEEP_CANCEL, "n_clicks")],
+    )(sweep_job)

@@ -114,3 +114,45 @@ def no_layers_note():
     """Content of the layers tab for a homogeneous case."""
     return html.P("Choose a layer method under Layers in the sidebar, or load a layer table, to see the "
                   "layered view.", className="muted")
+
+
+def _number_box(box_id, value, label, width="90px"):
+    return html.Div([html.Label(label, htmlFor=box_id, className="control-label"),
+                     dcc.Input(id=box_id, type="number", value=value, debounce=True, step="any",
+                               className="num-box", style={"width": width})], className="inline-field")
+
+
+def _run_row(run_id, cancel_id, progress_id):
+    return html.Div([html.Button("Run", id=run_id, n_clicks=0, className="button"),
+                     html.Button("Cancel", id=cancel_id, n_clicks=0, className="small-button", disabled=True),
+                     html.Progress(id=progress_id, max=100, value=0, className="progress")], className="row")
+
+
+def numerical_tab(patterns, sweep_methods: dict) -> html.Div:
+    """The numerical-check tab: 1D cross-check and pattern areal sweep (background jobs)."""
+    return html.Div([
+        html.P("Finite-volume runs take a few seconds; they run in the background with a progress bar. "
+               "They check the fast analytic forecast above and add pattern areal sweep.", className="muted"),
+        html.H3("One-dimensional cross-check: finite volumes beside Buckley-Leverett"),
+        html.Div([_number_box(ids.NUM_CELLS, 200, "Cells [-]"),
+                  _number_box(ids.NUM_ENTRY_PRESSURE, 0, "Capillary entry pressure Pe [psi] (0 = off)"),
+                  _number_box(ids.NUM_PORE_INDEX, 2, "Pore-size index λ [-]"),
+                  dcc.Checklist(id=ids.NUM_GRAVITY, options=[{"label": "Include the dip (gravity)", "value": "on"}],
+                                value=["on"], className="radio")], className="row"),
+        _run_row(ids.NUM_RUN, ids.NUM_CANCEL, ids.NUM_PROGRESS),
+        html.Div(id=ids.NUM_MESSAGE, className="muted", role="status"),
+        html.Div([graph(ids.NUM_FIGURE), graph(ids.NUM_CURVE_FIGURE)], className="figures"),
+        html.H3("Pattern areal sweep"),
+        html.Div([html.Div([html.Label("Pattern", htmlFor=ids.SWEEP_PATTERN, className="control-label"),
+                            dcc.Dropdown(id=ids.SWEEP_PATTERN, value=patterns[0], clearable=False,
+                                         options=[{"label": p.replace("_", " "), "value": p} for p in patterns],
+                                         style={"width": "180px"})], className="inline-field"),
+                  _number_box(ids.SWEEP_D_OVER_A, 1.0, "d/a of line drives [-]"),
+                  _number_box(ids.SWEEP_CELLS, 30, "Cells along the element [-]"),
+                  _number_box(ids.SWEEP_MAP_PVI, 0.5, "Map at PVI [PV]")], className="row"),
+        dcc.RadioItems(id=ids.SWEEP_METHOD, value="numerical", className="radio",
+                       options=[{"label": v, "value": k} for k, v in sweep_methods.items()]),
+        _run_row(ids.SWEEP_RUN, ids.SWEEP_CANCEL, ids.SWEEP_PROGRESS),
+        html.Div(id=ids.SWEEP_MESSAGE, className="muted", role="status"),
+        html.Div([graph(ids.SWEEP_FIGURE), graph(ids.SWEEP_CURVE_FIGURE)], className="figures"),
+    ], className="numerical-tab")

@@ -181,3 +181,62 @@ def layer_coverage_figure(layers) -> dict:
     fig["data"].append({**_marker(bt["wor_surface"].to_numpy()[keep], bt["vertical_coverage"].to_numpy()[keep],
                                   "layer breakthrough"), "marker": {"color": MARK, "size": 7}})
     return fig
+
+
+def crosscheck_profiles_figure(check) -> dict:
+    """Numerical (finite-volume) and analytic (Buckley-Leverett) saturation profiles at a few PVIs."""
+    fig = _figure(f"Saturation profiles: {check.cells} cells beside Buckley-Leverett",
+                  _axis("Distance from injector xD = x/L [-]", range=[0, 1]),
+                  _axis("Water saturation Sw [fraction]", range=[0, 1]), hovermode="closest")
+    for i, pvi in enumerate(check.profile_pvi):
+        color = (CURRENT, SECOND, OKABE_ITO["green"], OKABE_ITO["purple"])[i % 4]
+        fig["data"].append(_line(check.x, check.analytic_profiles[i], f"analytic {pvi:.2f} PV", color, 2.0))
+        num = _line(check.x, check.numerical_profiles[i], f"finite volumes {pvi:.2f} PV", color, 1.6)
+        num["line"]["dash"] = "dash"
+        fig["data"].append(num)
+    return fig
+
+
+def crosscheck_curve_figure(check) -> dict:
+    """Outlet fractional flow and recovery versus PVI: numerical beside analytic."""
+    c = check.curve
+    pvi = c["pvi"].to_numpy()
+    fig = _figure("Outlet water fraction and recovery", _axis("Pore volumes injected [total PV]"),
+                  _axis("Outlet reservoir fw [fraction]", range=[0, 1.02]),
+                  yaxis2=_second_axis("Recovery [fraction of initial oil]", range=[0, 1]))
+    fig["data"] += [_line(pvi, c["fw_analytic"].to_numpy(), "fw analytic"),
+                    {**_line(pvi, c["fw_numerical"].to_numpy(), "fw finite volumes", CURRENT, 1.6),
+                     "line": {"color": CURRENT, "width": 1.6, "dash": "dash"}},
+                    _line(pvi, c["recovery_factor_analytic"].to_numpy(), "recovery analytic", SECOND, 2.0, yaxis="y2"),
+                    {**_line(pvi, c["recovery_factor_numerical"].to_numpy(), "recovery finite volumes", SECOND, 1.6,
+                             yaxis="y2"), "line": {"color": SECOND, "width": 1.6, "dash": "dash"}}]
+    return fig
+
+
+def sweep_map_figure(sweep) -> dict:
+    """Water saturation over the pattern's symmetry element at the kept PVI (finite-volume method)."""
+    if not sweep.swept_maps:
+        fig = _figure("Swept-area map (finite-volume method only)", _axis("x [-]"), _axis("y [-]"))
+        return fig
+    pvi, field = next(iter(sweep.swept_maps.items()))
+    field = np.asarray(field)
+    fig = _figure(f"Water saturation over the symmetry element at {pvi:.2f} PV injected",
+                  _axis("x / element length [-]", range=[0, 1], showgrid=False),
+                  _axis("y / element width [-]", range=[0, 1], showgrid=False, scaleanchor="x"),
+                  hovermode="closest")
+    ny, nx = field.shape
+    fig["data"].append({"type": "heatmap", "z": field, "x": (np.arange(nx) + 0.5) / nx, "y": (np.arange(ny) + 0.5) / ny,
+                        "colorscale": "Cividis", "colorbar": {"title": {"text": "Sw [fraction]"}}, "zsmooth": False})
+    return fig
+
+
+def sweep_curve_figure(sweep) -> dict:
+    """Areal sweep and displacing-fluid fraction in production versus PVI."""
+    c = sweep.curve
+    fig = _figure(f"Areal sweep, {sweep.pattern.replace('_', ' ')} ({sweep.method})",
+                  _axis("Pore volumes injected [PV]"), _axis("Areal sweep [fraction]", range=[0, 1.02]),
+                  yaxis2=_second_axis("Displacing fluid in production fd [fraction]", range=[0, 1.02]))
+    fig["data"] += [_line(c["pvi"].to_numpy(), c["areal_sweep"].to_numpy(), "areal sweep"),
+                    _line(c["pvi"].to_numpy(), c["fd"].to_numpy(), "fd", SECOND, 2.0, yaxis="y2"),
+                    _marker([sweep.breakthrough_pvi], [sweep.areal_sweep_at_breakthrough], "breakthrough")]
+    return fig

@@ -91,3 +91,16 @@ UNPIN_TYPE = "unpin"
 def unpin(key: str) -> dict:
     """Pattern-matching id of the remove button of a pinned case."""
     return {"type": UNPIN_TYPE, "key": key}
+
+# Numerical-check inputs
+NUM_CELLS = "numerical-cells"
+NUM_ENTRY_PRESSURE = "numerical-entry-pressure"
+NUM_PORE_INDEX = "numerical-pore-size-index"
+NUM_GRAVITY = "numerical-gravity"
+NUM_CURVE_FIGURE = "fig-numerical-curve"
+SWEEP_PATTERN = "sweep-pattern"
+SWEEP_D_OVER_A = "sweep-d-over-a"
+SWEEP_METHOD = "sweep-method"
+SWEEP_CELLS = "sweep-cells"
+SWEEP_MAP_PVI = "sweep-map-pvi"
+SWEEP_CURVE_FIGURE = "fig-sweep-curve"

@@ -6,11 +6,15 @@ from dash import dcc, html
 
 from . import components, ids
 from .components import graph as _graph
-from .adapter import CONTROLS, LAYER_CONTROLS, LAYER_METHODS, controls_from_scenario, demo_scenario, evaluate
+from .adapter import (CONTROLS, LAYER_CONTROLS, LAYER_METHODS, SWEEP_METHODS, controls_from_scenario,
+                      demo_scenario, evaluate)
 
 
-def build_layout(extra_sections=()) -> html.Div:
-    """The whole page with the demo scenario loaded (no module-level state: built per call)."""
+def build_layout(numerical_patterns=()) -> html.Div:
+    """The whole page with the demo scenario loaded (no module-level state: built per call).
+
+    ``numerical_patterns``: pattern names of the numerical tab (no tab when empty).
+    """
     from . import figures
 
     demo = demo_scenario()
@@ -60,6 +64,9 @@ def build_layout(extra_sections=()) -> html.Div:
             ], className="graph-cell")),
             dcc.Tab(label="Layers", value="layers", children=html.Div(
                 components.no_layers_note(), id=ids.LAYER_SECTION, className="section-layers")),
+            *([dcc.Tab(label="Numerical check", value="numerical",
+                       children=components.numerical_tab(numerical_patterns, SWEEP_METHODS))]
+              if numerical_patterns else []),
         ]),
         html.Section([
             html.H2("Compare cases"),
@@ -88,7 +95,6 @@ def build_layout(extra_sections=()) -> html.Div:
                      className="row"),
             dcc.Download(id=ids.DOWNLOAD),
         ], className="section"),
-        *extra_sections,
     ], className="main")
     header = html.Header([html.H1("flood"), html.Span("waterflood screening forecasts", className="tagline"),
                           html.Span(demo["name"], className="case-name", id="case-name")], className="header")

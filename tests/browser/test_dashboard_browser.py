@@ -216,3 +216,50 @@ def test_layered_view_appears_and_follows_v(session):
     page.click("text=None (one homogeneous layer)")
     page.wait_for_selector("#fig-layer-fronts", state="detached", timeout=10_000)
     assert session.errors == []
+
+
+_RECORD_PROGRESS_JS = """(id) => { window.__progress = [];
+  const el = document.getElementById(id);
+  new MutationObserver(() => window.__progress.push(Number(el.value)))
+    .observe(el, {attributes: true, attributeFilter: ['value']}); }"""
+
+
+def _run_background(session, run_id, progress_id, message_id, timeout=60_000):
+    page = session.page
+    page.evaluate(_RECORD_PROGRESS_JS, progress_id)
+    page.click(f"#{run_id}")
+    page.wait_for_function(f"() => document.getElementById('{message_id}').innerText.length > 0", timeout=timeout)
+    return page.evaluate("() => window.__progress"), page.inner_text(f"#{message_id}")
+
+
+def test_numerical_crosscheck_runs_in_background(session):
+    session.open_tab("Numerical check")
+    session.page.fill("#numerical-cells", "2500")  # about 2 s: several progress updates at 200 ms
+    progress, msg = _run_background(session, "numerical-run", "numerical-progress", "numerical-message")
+    assert "2500 cells" in msg and "Breakthrough" in msg
+    assert progress and max(progress) >= 90 and any(0 < p < 100 for p in progress), progress
+    expected = adapter.run_crosscheck(adapter.demo_scenario(), 2500, 0, 2, True)
+    assert f"(analytic {expected.breakthrough_pvi_analytic:.3f})" in msg
+    y = session.trace_y("fig-numerical", 1)
+    np.testing.assert_allclose(y, expected.numerical_profiles[0], atol=1e-12)
+    assert session.errors == []
+
+
+def test_pattern_sweep_map_in_background(session):
+    session.open_tab("Numerical check")
+    session.page.fill("#sweep-cells", "24")
+    progress, msg = _run_background(session, "sweep-run", "sweep-progress", "sweep-message")
+    assert "five spot" in msg and "areal sweep at breakthrough" in msg
+    assert progress and max(progress) == 100
+    kind = session.page.evaluate("() => document.querySelector('#fig-sweep .js-plotly-plot')._fullData[0].type")
+    assert kind == "heatmap"
+    assert session.errors == []
+
+
+def test_background_job_under_gunicorn(open_session, gunicorn_url):
+    s = open_session(gunicorn_url)
+    s.open_tab("Numerical check")
+    s.page.fill("#numerical-cells", "120")
+    _, msg = _run_background(s, "numerical-run", "numerical-progress", "numerical-message")
+    assert "120 cells" in msg
+    assert s.errors == []
