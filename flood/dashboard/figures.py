@@ -32,7 +32,7 @@ def _axis(title: str, **extra) -> dict:
 
 
 def _second_axis(title: str, **extra) -> dict:
-    return _axis(title, overlaying="y", side="right", showgrid=False, **extra)
+    return _axis(title, overlaying="y", side="right", showgrid=False, **{"tickmode": "auto", "nticks": 6, **extra})
 
 
 def _figure(title: str, x_axis: dict, y_axis: dict, hovermode="x unified", **layout) -> dict:
