@@ -112,9 +112,13 @@ def test_upload_rejections(demo):
         adapter.decode_upload(data_url("x" * (MAX_FILE_BYTES + 10)), "big.csv", "CSV")
     with pytest.raises(FloodInputError, match=r"header row with columns sw, krw, kro"):
         adapter.scenario_with_relperm_table(demo, data_url("a,b\n1,2\n"), "t.csv")
-    with pytest.raises(FloodInputError, match=r"relperm.file"):
+    with pytest.raises(FloodInputError, match=r"relperm.file = '/etc/passwd': an inline relperm.table in the dashboard"):
         bad = copy.deepcopy(demo)
         bad["relperm"] = {"model": "table", "file": "/etc/passwd"}
+        adapter.scenario_from_upload(data_url(json.dumps(bad)), "s.json")
+    with pytest.raises(FloodInputError, match=r"layers.file = '/etc/passwd': an inline layers.table"):
+        bad = copy.deepcopy(demo)
+        bad["layers"] = {"method": "dykstra_parsons", "file": "/etc/passwd"}
         adapter.scenario_from_upload(data_url(json.dumps(bad)), "s.json")
 
 
@@ -146,3 +150,14 @@ def test_format_quantity():
     assert adapter.format_quantity("recovery_factor_at_breakthrough", 0.5294) == "52.9"
     assert adapter.format_quantity("ooip_stb", 1360011.13) == "1,360,011"
     assert adapter.format_quantity("breakthrough_days", float("inf")) == "—"
+
+
+@pytest.mark.parametrize("patch", [{"relperm": {"model": "table", "file": "/etc/hostname"}},
+                                   {"layers": {"method": "dykstra_parsons", "file": "/etc/hostname"}}])
+def test_browser_data_never_reads_server_files(demo, patch):
+    """A crafted dcc.Store value naming a file is refused before any file is opened."""
+    crafted = {**copy.deepcopy(demo), **patch}
+    with pytest.raises(FloodInputError, match=r"(relperm|layers)\.file = '/etc/hostname': an inline"):
+        adapter.evaluate(crafted)
+    with pytest.raises(FloodInputError, match=r"\.file = '/etc/hostname'"):
+        adapter.download_bytes("csv", crafted)

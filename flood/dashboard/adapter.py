@@ -124,9 +124,25 @@ def _set(d, path, value):
     d[path[-1]] = value
 
 
+def _inline_only(sc):
+    """The scenario, if it names no file: browser data must never make the server read its own files."""
+    if getattr(sc.relperm, "file", None) is not None:
+        raise FloodInputError("relperm.file", sc.relperm.file, "an inline relperm.table in the dashboard",
+                              "upload the CSV with the relative-permeability upload instead")
+    if getattr(getattr(sc, "layers", None), "file", None) is not None:
+        raise FloodInputError("layers.file", sc.layers.file, "an inline layers.table or layers.variation in the "
+                              "dashboard", "upload the CSV with the layer-table upload instead")
+    return sc
+
+
+def parse_inline(scenario: dict):
+    """Validate a scenario dict from the browser (``parse_scenario``), refusing file references."""
+    return _inline_only(parse_scenario(scenario))
+
+
 def mobility_ratio_of(scenario: dict) -> float:
     """Endpoint mobility ratio of a valid scenario dict [-] (engine: ``endpoint_mobility_ratio``)."""
-    sc = parse_scenario(scenario)
+    sc = parse_inline(scenario)
     rp = build_relperm(sc)
     return float(endpoint_mobility_ratio(rp.krw_end, rp.kro_end, sc.fluids.mu_w_cp, sc.fluids.mu_o_cp))
 
@@ -226,7 +242,7 @@ def evaluate(scenario: dict, points: int = 300):
     ------
     FloodInputError
     """
-    sc = parse_scenario(scenario)
+    sc = parse_inline(scenario)
     result = run_study(build_case(sc), points=points)
     return scenario_to_dict(sc), result
 
@@ -275,14 +291,11 @@ def decode_upload(contents: str, filename: str, what: str) -> str:
 def scenario_from_upload(contents: str, filename: str) -> dict:
     """Validated scenario dict from an uploaded JSON file (same validation as the command line).
 
-    A relative-permeability table must be inline (``relperm.table``): an uploaded file cannot
-    refer to other files on the server.
+    Tables must be inline (``relperm.table``, ``layers.table``): an uploaded file cannot make the
+    server read its own files. The check comes before any file would be opened (``build_case``).
     """
     text = decode_upload(contents, filename, "scenario JSON file")
-    sc = parse_scenario_text(text, source=filename or "scenario")
-    if getattr(sc.relperm, "file", None) is not None:
-        raise FloodInputError("relperm.file", sc.relperm.file, "an inline relperm.table in an uploaded scenario",
-                              "upload the CSV with the relative-permeability upload instead")
+    sc = _inline_only(parse_scenario_text(text, source=filename or "scenario"))
     data = scenario_to_dict(sc)
     evaluate(data, points=2)  # dynamic checks (fill-up before breakthrough...)
     return data
@@ -333,7 +346,8 @@ def download_bytes(kind: str, scenario: dict) -> tuple[bytes, str]:
     """File bytes and file name for a download of the current scenario ('csv', 'xlsx' or 'json')."""
     stem = "".join(ch if ch.isalnum() or ch in "-_" else "_" for ch in scenario.get("name", "case"))[:60] or "case"
     if kind == "json":
-        return json.dumps(scenario, indent=2).encode("utf-8"), f"{stem}.json"
+        data, _ = evaluate(scenario, points=2)
+        return json.dumps(data, indent=2).encode("utf-8"), f"{stem}.json"
     data, result = evaluate(scenario)
     sheets = result_sheets(data, result)
     return table_bytes(f".{kind}", sheets, "forecast"), f"{stem}_forecast.{kind}"
@@ -425,7 +439,7 @@ def days_at_pvi(scenario: dict, pvi: float) -> float:
     """Days since injection start when ``pvi`` pore volumes have been injected (engine injection plan)."""
     from flood.forecast import pore_volume
 
-    case = build_case(parse_scenario(scenario))
+    case = build_case(parse_inline(scenario))
     vp = float(pore_volume(case.area_acres, case.thickness_ft, case.porosity))
     return float(case.injection.days_at_cumulative(pvi * vp / case.bw))
 
@@ -472,7 +486,7 @@ def run_crosscheck(scenario: dict, cells, entry_pressure_psi, pore_size_index, g
 
     cells = _number("cells", cells, 10, 5000, integer=True)
     pe = _number("entry pressure", entry_pressure_psi, 0.0, 1000.0)
-    sc = parse_scenario(scenario)
+    sc = parse_inline(scenario)
     case = build_case(sc)
     capillary = None
     if pe > 0:
@@ -493,7 +507,7 @@ def run_sweep(scenario: dict, pattern: str, d_over_a, method: str, cells, map_pv
 
     d_over_a = _number("d/a", d_over_a, 0.25, 10.0)
     cells = _number("cells", cells, 10, 200, integer=True)
-    sc = parse_scenario(scenario)
+    sc = parse_inline(scenario)
     case = build_case(sc)
     max_pvi = float(min(max(sc.limits.max_pvi, 1.0), 5.0))
     if method == "numerical":
