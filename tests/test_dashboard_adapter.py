@@ -88,6 +88,7 @@ def test_workbook_sheets(demo):
     np.testing.assert_allclose(sheets["forecast"].to_numpy(), engine.table.to_numpy(), rtol=1e-12)
     summary = dict(zip(sheets["summary"]["quantity"], sheets["summary"]["value"]))
     assert float(summary["breakthrough_pvi"]) == pytest.approx(engine.summary["breakthrough_pvi"], rel=1e-12)
+    assert "licensed professionals" in summary["caution"]
 
 
 def test_scenario_json_round_trip(demo):

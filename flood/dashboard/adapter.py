@@ -17,6 +17,7 @@ from pathlib import Path
 
 import pandas as pd
 
+from flood.cli import SCREENING_NOTE
 from flood.errors import FloodInputError
 from flood.forecast import FORECAST_COLUMNS, endpoint_mobility_ratio
 from flood.output import table_bytes
@@ -333,7 +334,8 @@ def result_sheets(scenario: dict, result) -> dict:
     inputs = pd.json_normalize(scenario, sep=".").T.reset_index()
     inputs.columns = ["input", "value"]
     inputs["value"] = inputs["value"].map(lambda v: json.dumps(v) if isinstance(v, list) else v).astype(str)
-    summary = pd.DataFrame({"quantity": list(result.summary), "value": [str(v) for v in result.summary.values()]})
+    summary = pd.DataFrame({"quantity": [*result.summary, "caution"],
+                            "value": [*(str(v) for v in result.summary.values()), SCREENING_NOTE]})
     sheets = {"inputs": inputs, "summary": summary, "forecast": unit_headers(result.table)}
     layers = getattr(result, "layers", None)
     if layers is not None:
