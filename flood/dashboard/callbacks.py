@@ -192,7 +192,8 @@ def load_files_callback(scn, rp, lay, corey, layer_button, scn_name, rp_name, la
     out = load_files(trigger, contents[0], contents[1], current, dict(zip(CONTROL_NAMES, box_values)))
     boxes = out["boxes"]
     box_out = [no_update] * len(CONTROL_NAMES) if boxes is no_update else [boxes.get(n) for n in CONTROL_NAMES]
-    return (out["base"], *box_out, out["method"], out["msg_scenario"], out["msg_relperm"], out["msg_layers"])
+    msgs = [components.upload_message(out[k]) for k in ("msg_scenario", "msg_relperm", "msg_layers")]
+    return (out["base"], *box_out, out["method"], *msgs)
 
 
 def update_pins(trigger, current: dict, pins: list, label: str):

@@ -156,3 +156,10 @@ def numerical_tab(patterns, sweep_methods: dict) -> html.Div:
         html.Div(id=ids.SWEEP_MESSAGE, className="muted", role="status"),
         html.Div([graph(ids.SWEEP_FIGURE), graph(ids.SWEEP_CURVE_FIGURE)], className="figures"),
     ], className="numerical-tab")
+
+
+def upload_message(text):
+    """An upload's message line: rejections in the warning style (``no_update`` passes through)."""
+    if not isinstance(text, str):
+        return text
+    return html.Span(text, className="rejected" if text.startswith("Rejected") else "accepted")
