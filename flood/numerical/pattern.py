@@ -87,20 +87,22 @@ class PatternElement:
     wells: tuple
     d_over_a: float | None = None
 
-    def grid(self, cells: int) -> CartesianGrid:
+    def grid(self, cells: int, stencil: int = 5) -> CartesianGrid:
         """A grid of about ``cells`` cells along the longer side, cells close to square.
 
         Parameters
         ----------
         cells : int
             Cells along the longer side, 4..2000 [-].
+        stencil : int
+            5 or 9 connections per cell (see :class:`CartesianGrid`).
         """
         if not (isinstance(cells, (int, np.integer)) and 4 <= cells <= 2000):
             raise FloodInputError("cells", cells, "a whole number 4 <= cells <= 2000 (along the longer side)")
         longer = max(self.length_x, self.length_y)
         nx = max(2, int(round(cells * self.length_x / longer)))
         ny = max(2, int(round(cells * self.length_y / longer)))
-        return CartesianGrid(nx, ny, self.length_x / nx, self.length_y / ny)
+        return CartesianGrid(nx, ny, self.length_x / nx, self.length_y / ny, stencil=stencil)
 
     def well_rates(self, grid: CartesianGrid) -> np.ndarray:
         """Rate per cell of the element's wells on ``grid`` (point sources shared by bilinear weights)."""

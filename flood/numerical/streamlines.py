@@ -63,6 +63,8 @@ def face_fluxes(grid: CartesianGrid, flux: np.ndarray):
     west, east, south, north : numpy.ndarray, each of shape (ny, nx)
         Zero on the outer (closed) boundary [volume/time].
     """
+    if grid.stencil != 5:
+        raise FloodInputError("grid.stencil", grid.stencil, "5 (streamlines trace face fluxes only)")
     nx, ny = grid.nx, grid.ny
     fx = flux[: grid.faces_x].reshape(ny, nx - 1)
     fy = flux[grid.faces_x:].reshape(ny - 1, nx)
@@ -219,23 +221,28 @@ def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndar
 
 
 def _axis_time(u0, ulo, uhi, a, offset, size):
-    """Exit time along one axis (Pollock): inf when the streamline does not leave on this axis."""
+    """Exit time along one axis (Pollock): inf when the streamline does not leave on this axis.
+
+    t = ln(u_exit/u0)/a with u_exit = u0 + a dist, written as log1p(a dist/u0)/a so that it stays
+    accurate as a -> 0 (limit dist/u0).
+    """
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         pos = (u0 > _TINY) & (uhi > _TINY)
         neg = (u0 < -_TINY) & (ulo < -_TINY)
-        target = np.where(pos, uhi, np.where(neg, ulo, 1.0))
         base = np.where(pos | neg, u0, 1.0)
-        linear = np.abs(a) * size < 1e-9 * (np.abs(u0) + _TINY)
-        t_log = np.log(target / base) / np.where(linear, 1.0, a)
         dist = np.where(pos, size - offset, -offset)
-        t_lin = dist / base
-        t = np.where(linear, t_lin, t_log)
+        z = a * dist / base
+        small = np.abs(z) < 1e-12
+        t = np.where(small, dist / base, np.log1p(np.maximum(z, -1.0 + 1e-300)) / np.where(small, 1.0, a))
         return np.where(pos | neg, np.maximum(t, 0.0), np.inf)
 
 
 def _advance(pos, lo, u0, ulo, a, dt):
-    """Position after ``dt`` inside the cell along one axis (linear velocity, Pollock)."""
-    with np.errstate(over="ignore", invalid="ignore"):
-        linear = np.abs(a) < 1e-12
-        moved = lo + (u0 * np.exp(a * dt) - ulo) / np.where(linear, 1.0, a)
-        return np.where(linear, pos + u0 * dt, moved)
+    """Position after ``dt`` inside the cell along one axis (linear velocity, Pollock).
+
+    x = x0 + u0 (exp(a dt) - 1)/a, with expm1 so that it stays accurate as a -> 0 (limit u0 dt).
+    """
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        adt = a * dt
+        small = np.abs(adt) < 1e-12
+        return pos + u0 * np.where(small, dt, np.expm1(adt) / np.where(small, 1.0, a))

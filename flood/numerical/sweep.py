@@ -9,9 +9,11 @@
 * :func:`numerical_sweep` (any M): the IMPES solver on the element. Given only a mobility ratio
   M, the displacement is piston-like: an indicator c (0 oil, 1 water) moves with the total
   velocity (fw = c) and the cell mobility is the series (harmonic) mix 1/λ = c/M + (1 - c).
-  Given a relative-permeability model, the scenario's two-phase flow is solved instead. A cell
-  counts as swept once c (or Sw) is past the middle of the front, and breakthrough is when the
-  producers' fw first passes the middle of the front value.
+  Given a relative-permeability model, the scenario's two-phase flow is solved instead. The
+  grid has nine-point connections (against the grid-orientation effect). Breakthrough is the
+  first arrival of displacing fluid at the producers (1 % of the front's fw jump); the swept
+  share counts each cell by how far the front has come through it (for the piston case, the
+  displaced volume).
 
 References
 ----------
@@ -41,6 +43,12 @@ DEFAULT_CELLS_NUMERICAL = 40
 
 #: Streamlines launched by default.
 DEFAULT_LINES = 4000
+
+#: Connections per cell of the finite-volume sweep (nine-point against grid orientation).
+DEFAULT_STENCIL = 9
+
+#: Share of displacing fluid in the production that marks its first arrival (breakthrough) [-].
+BREAKTHROUGH_FD = 0.01
 
 
 @dataclass(frozen=True)
@@ -73,6 +81,8 @@ class ArealSweepResult:
         otherwise.
     swept_maps : dict
         PVI -> swept indicator or saturation per cell, shape (ny, nx) (numerical method).
+    stencil : int or None
+        Connections per cell of the finite-volume grid (numerical method).
     """
 
     pattern: str
@@ -87,13 +97,15 @@ class ArealSweepResult:
     tube_flux: np.ndarray = field(default_factory=lambda: np.zeros(0))
     tube_time: np.ndarray = field(default_factory=lambda: np.zeros(0))
     swept_maps: dict = field(default_factory=dict)
+    stencil: int | None = None
 
     def summary(self) -> dict:
         """Headline figures as a flat dict."""
         return {"pattern": self.pattern, "d_over_a": self.d_over_a, "mobility_ratio": self.mobility_ratio,
                 "method": self.method, "cells": self.cells,
                 "areal_sweep_at_breakthrough": self.areal_sweep_at_breakthrough,
-                "breakthrough_pvi": self.breakthrough_pvi, "seconds": self.seconds}
+                "breakthrough_pvi": self.breakthrough_pvi, "seconds": self.seconds,
+                **({"stencil": self.stencil} if self.stencil is not None else {})}
 
 
 def _pvi_grid(max_pvi, points, extra=()):
@@ -217,7 +229,7 @@ def numerical_sweep(pattern: str | PatternElement = "five_spot", *, mobility_rat
                     d_over_a: float = 1.0, cells: int = DEFAULT_CELLS_NUMERICAL, relperm=None,
                     mu_w: float = 1.0, mu_o: float = 1.0, swi: float | None = None,
                     max_pvi: float = 2.0, points: int = 41, map_pvi=(), cfl: float = 0.9,
-                    progress=None) -> ArealSweepResult:
+                    stencil: int = DEFAULT_STENCIL, progress=None) -> ArealSweepResult:
     """Areal sweep at any mobility ratio with the finite-volume solver on the symmetry element.
 
     Parameters
@@ -241,6 +253,10 @@ def numerical_sweep(pattern: str | PatternElement = "five_spot", *, mobility_rat
         PVIs at which to keep the saturation map (``swept_maps``).
     cfl : float
         CFL safety factor [-].
+    stencil : int
+        9 (default: face and diagonal connections, see :class:`~flood.numerical.grid.CartesianGrid`)
+        or 5. Falls back to 5 when the element's cells are too far from square for nine points;
+        the stencil used is in the result's ``summary()``.
     progress : callable, optional
         ``progress(fraction)``.
 
@@ -251,18 +267,30 @@ def numerical_sweep(pattern: str | PatternElement = "five_spot", *, mobility_rat
     Raises
     ------
     FloodInputError
-        Mobility ratio out of range, bad grid size.
+        Mobility ratio out of range, bad grid size or stencil.
 
     Notes
     -----
-    Swept: c >= 1/2 (piston) or Sw >= Swi + (Swf - Swi)/2 with Swf the Buckley-Leverett front
-    saturation. Breakthrough: producers' fw >= 1/2 (piston) or fw_i + (fw_f - fw_i)/2. The
-    upwind scheme smears the front over a few cells, so the sweep at breakthrough converges to
-    first order as the grid is refined; the streamline method is the sharper one at M = 1.
+    Breakthrough is the first arrival of the displacing fluid: the producers' share of it,
+    fd (normalised over the front jump, fw_i + fd (fw_f - fw_i) for a two-phase run), first
+    reaching :data:`BREAKTHROUGH_FD`, interpolated within the step. The swept share is, for the
+    piston-like displacement, the displaced volume over the pattern's pore volume, Σ c Vp / Σ Vp:
+    exact by material balance whatever the front smearing, and equal to W before breakthrough.
+    A two-phase run counts each cell by how far the front has come through it,
+    Σ Vp clip((Sw - Swi)/(Swf - Swi), 0, 1) / Σ Vp with Swf the Buckley-Leverett front
+    saturation: 1 behind a sharp front, 0 ahead of it, the piston rule for c = Sw.
+
+    Accuracy (measured, see DEVELOPERS.md): with the nine-point stencil the diagonal and
+    parallel five-spot elements agree within 0.01 at M = 1..5, while five points differ by up
+    to 0.2 at M = 5 (the grid-orientation effect, Todd, O'Dell & Hirasaki 1972, from memory).
+    Upwind smearing still delays the first arrival at the corner producer: at M = 1 the
+    five-spot sweep at breakthrough comes out 0.77, 0.76, 0.75 on 20, 40 and 80 cells against
+    0.7178, converging at about order 0.5; use the streamline method at M = 1.
 
     References
     ----------
     Aziz & Settari, 1979; Craig, 1971, SPE Monograph 3 (definition of areal sweep; from memory).
+    Yanosik & McCracken, 1979, SPE J. 19(4) (nine-point scheme; from memory).
     """
     t0 = _time.perf_counter()
     element = pattern if isinstance(pattern, PatternElement) else pattern_element(pattern, d_over_a)
@@ -270,50 +298,63 @@ def numerical_sweep(pattern: str | PatternElement = "five_spot", *, mobility_rat
         if mobility_ratio is None or not (np.isfinite(mobility_ratio) and 0.05 <= mobility_ratio <= 50):
             raise FloodInputError("mobility_ratio", mobility_ratio, "0.05 <= M <= 50")
         model, mw, mo, s0 = PistonMobility(float(mobility_ratio)), 1.0, 1.0, 0.0
-        s_mid, f_mid, m_report = 0.5, 0.5, float(mobility_ratio)
+        s_front, f0, f1, m_report = 1.0, 0.0, 1.0, float(mobility_ratio)
     else:
         from ..displacement import buckley_leverett
 
         s0 = float(relperm.swc) if swi is None else float(swi)
         sol = buckley_leverett(relperm, mu_w, mu_o, s0)
         model, mw, mo = relperm, float(mu_w), float(mu_o)
-        s_mid = s0 + 0.5 * (sol.front_saturation - s0)
-        f_mid = sol.fw_initial + 0.5 * (sol.front_fw - sol.fw_initial)
+        s_front = float(sol.front_saturation)
+        f0, f1 = float(sol.fw_initial), float(sol.front_fw)
         m_report = float((relperm.krw_end / mu_w) / (relperm.kro_end / mu_o))
+    if stencil not in (5, 9):
+        raise FloodInputError("stencil", stencil, "5 or 9 (connections per cell)")
     grid = element.grid(cells)
+    if stencil == 9 and 0.45 < grid.dx / grid.dy < 2.2:
+        grid = element.grid(cells, 9)
     q = element.well_rates(grid)
     pv = float(grid.pore_volume.sum())
     inj = float(q[q > 0].sum())
     pvi = _pvi_grid(max_pvi, points)
     maps_at = np.asarray(sorted(set(float(v) for v in map_pvi if 0 < v <= max_pvi)), dtype=float)
     report = np.unique(np.concatenate((pvi[1:], maps_at)))
+    f_arrival = f0 + BREAKTHROUGH_FD * (f1 - f0)
+    weights = grid.pore_volume / pv
+    piston = relperm is None
+    span = max(s_front - s0, 1e-12)
+
+    def swept_share(sw):
+        return float(np.clip((sw - s0) / span, 0.0, 1.0) @ weights)
+
     at_bt = {}
 
     def stop(t, sw, fw):
-        if "sw" not in at_bt and fw >= f_mid:
-            at_bt["t"], at_bt["sw"] = t, sw.copy()
+        if "t" not in at_bt and fw >= f_arrival:
+            at_bt["t"], at_bt["swept"] = t, swept_share(sw)
         return False
 
     run = simulate_two_phase(grid, model, mw, mo, s0, q, max_pvi * pv / inj, report_times=report * pv / inj,
                              cfl=cfl, stop=stop, progress=progress)
-    weights = grid.pore_volume / pv
-    swept = (run.report_saturations >= s_mid) @ weights
+    swept = np.array([swept_share(sw) for sw in run.report_saturations])
     rep_pvi = run.report_times * inj / pv
     sweep = np.interp(pvi, np.concatenate(([0.0], rep_pvi)), np.concatenate(([0.0], swept)))
     t_pvi = run.time * inj / pv
     fd = np.interp(pvi, t_pvi, run.producer_fw)
-    if relperm is not None:
-        fd = np.clip((fd - sol.fw_initial) / max(1.0 - sol.fw_initial, 1e-12), 0.0, 1.0)
+    if not piston:
+        fd = np.clip((fd - f0) / max(1.0 - f0, 1e-12), 0.0, 1.0)
     curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": fd})
-    if "sw" in at_bt:
+    if "t" in at_bt:
         # the crossing happened during the step ending at at_bt["t"]; interpolate the PVI
         k = int(np.searchsorted(run.time, at_bt["t"]))
-        w_bt = float(np.interp(f_mid, [run.producer_fw[k - 1], run.producer_fw[k]],
-                               [t_pvi[k - 1], t_pvi[k]])) if k > 0 and run.producer_fw[k] > run.producer_fw[k - 1] else float(t_pvi[k])
-        e_bt = float((at_bt["sw"] >= s_mid) @ weights)
+        fa, fb = run.producer_fw[k - 1], run.producer_fw[k]
+        w_bt = (float(np.interp(f_arrival, [fa, fb], [t_pvi[k - 1], t_pvi[k]])) if k > 0 and fb > fa
+                else float(t_pvi[k]))
+        # before breakthrough the piston sweep is W itself; otherwise the share at the crossing
+        e_bt = min(w_bt, 1.0) if piston else at_bt["swept"]
     else:
         w_bt, e_bt = math.nan, math.nan
     maps = {float(v): run.report_saturations[int(np.argmin(np.abs(run.report_times * inj / pv - v)))]
             .reshape(grid.ny, grid.nx) for v in maps_at}
     return ArealSweepResult(element.pattern, element.d_over_a, m_report, "numerical", int(cells), w_bt, e_bt,
-                            curve, _time.perf_counter() - t0, swept_maps=maps)
+                            curve, _time.perf_counter() - t0, swept_maps=maps, stencil=grid.stencil)

@@ -36,13 +36,16 @@ from dataclasses import dataclass
 import numpy as np
 import scipy.sparse as sp
 from scipy.linalg.lapack import dgtsv
-from scipy.sparse.linalg import splu
+from scipy.sparse.linalg import LinearOperator, cg, splu
 
 from ..errors import FloodInputError
 from .grid import CartesianGrid
 
 _SAMPLES = 2001
 _MAX_UPSTREAM_ITERATIONS = 4
+#: Relative residual and iteration limit of the preconditioned conjugate-gradient pressure solve.
+_KRYLOV_RTOL = 1e-11
+_KRYLOV_MAXITER = 12
 
 
 @dataclass(frozen=True)
@@ -98,10 +101,15 @@ class PressureSolver:
     """Solve the pressure equation for given face weights T λt and right-hand side.
 
     A chain of cells (1D grid) is solved as a tridiagonal system (LAPACK ``dgtsv`` via scipy);
-    anything else with a sparse LU factorisation (``scipy.sparse.linalg.splu``), which is kept and
+    anything else with a sparse LU factorisation (``scipy.sparse.linalg.splu``, minimum-degree
+    ordering of the symmetric matrix), which is kept and
     reused while the face weights do not change. The system is singular (pure Neumann with
     sources summing to zero); it is made regular by adding the first diagonal entry to itself,
-    which sets p = 0 in cell 0 and leaves every other equation exact.
+    which sets p = 0 in cell 0 and leaves every other equation exact. When the weights change,
+    conjugate gradients (``scipy.sparse.linalg.cg``) preconditioned by the previous factorisation
+    and started from the previous pressure are tried first; only if they miss the tolerance
+    within a few iterations is the matrix factorised again (common practice for slowly varying
+    systems).
     """
 
     def __init__(self, grid: CartesianGrid):
@@ -117,6 +125,8 @@ class PressureSolver:
         self._rhs = None
         self._p = None
         self.solves = 0
+        self.factorisations = 0
+        self.krylov_solves = 0
 
     def solve(self, weights: np.ndarray, rhs: np.ndarray) -> np.ndarray:
         """Pressure per cell for face weights ``weights`` and sources ``rhs``."""
@@ -137,15 +147,49 @@ class PressureSolver:
         if self.n == 1:
             p = np.zeros(1)
         else:
-            if self._lu is None or not np.array_equal(weights, self._weights):
-                data = np.concatenate((weights, weights, -weights, -weights))
-                a = sp.coo_matrix((data, (self.rows, self.cols)), shape=(self.n, self.n)).tocsc()
-                a[0, 0] = 2.0 * a[0, 0]
-                self._lu = splu(a)
-            p = self._lu.solve(rhs)
+            p = None
+            if self._lu is not None and not np.array_equal(weights, self._weights):
+                p = self._krylov(weights, rhs)
+            if p is None:
+                if self._lu is None or not np.array_equal(weights, self._weights):
+                    self._factorise(weights)
+                p = self._lu.solve(rhs)
         self._weights = weights.copy()
         self._rhs = rhs.copy()
         self._p = p
+        return p
+
+    def _factorise(self, weights):
+        data = np.concatenate((weights, weights, -weights, -weights))
+        a = sp.coo_matrix((data, (self.rows, self.cols)), shape=(self.n, self.n)).tocsc()
+        a[0, 0] = 2.0 * a[0, 0]
+        # the matrix is symmetric: a minimum-degree ordering of A^T + A keeps the fill low
+        self._lu = splu(a, permc_spec="MMD_AT_PLUS_A", options={"SymmetricMode": True})
+        self.factorisations += 1
+
+    def _krylov(self, weights, rhs):
+        """Conjugate gradients preconditioned by the last factorisation, from the last pressure.
+
+        Mobilities change little between pressure solves, so the old factor is a close
+        preconditioner and a few iterations reach the tolerance; None when they do not (the
+        caller then factorises afresh).
+        """
+        fl, fr, n = self.fl, self.fr, self.n
+        a00 = float(weights[(fl == 0) | (fr == 0)].sum())
+
+        def matvec(x):
+            x = np.ravel(x)
+            flux = weights * (x[fl] - x[fr])
+            y = np.bincount(fl, flux, n) - np.bincount(fr, flux, n)
+            y[0] += a00 * x[0]
+            return y
+
+        a = LinearOperator((n, n), matvec=matvec, dtype=float)
+        m = LinearOperator((n, n), matvec=lambda x: self._lu.solve(np.ravel(x)), dtype=float)
+        p, info = cg(a, rhs, x0=self._p, rtol=_KRYLOV_RTOL, maxiter=_KRYLOV_MAXITER, M=m)
+        if info != 0:
+            return None
+        self.krylov_solves += 1
         return p
 
 
