@@ -397,3 +397,51 @@ def buckley_leverett(relperm, mu_w, mu_o, swi=None, gravity=0.0, wave_points=801
                          average_saturation_at_breakthrough=sw_bar_bt,
                          wave_speed=np.asarray(speed), wave_saturation=np.asarray(s),
                          concave_tail=concave)
+
+
+def breakthrough_mobility_ratio(relperm, mu_w, mu_o, swi=None, gravity=0.0, *, solution=None) -> float:
+    """Mobility ratio of the displacement at breakthrough, the one areal-sweep charts use [-].
+
+    Parameters
+    ----------
+    relperm : Corey or LabTable
+        Relative-permeability model.
+    mu_w, mu_o : float
+        Water and oil viscosity [cp].
+    swi : float, optional
+        Initial water saturation [fraction] (default Swc).
+    gravity : float
+        Gravity number of :func:`buckley_leverett` [-].
+    solution : FrontSolution, optional
+        A ready :func:`buckley_leverett` solution of the same case (saves solving it again).
+
+    Returns
+    -------
+    float
+        M_bt = [krw(S̄w,bt)/μw] / [kro(Swi)/μo] [-].
+
+    Notes
+    -----
+    The water mobility is taken at the Welge average saturation behind the front at
+    breakthrough, the oil mobility ahead of the front (Craig 1971, Ch. 3, from memory). With
+    piston-like relative permeabilities it equals the endpoint mobility ratio; with a spreading
+    Buckley-Leverett front it is lower, so it is the M at which to read a piston-displacement
+    sweep correlation such as Fassihi's.
+
+    References
+    ----------
+    Craig, F.F., 1971, The Reservoir Engineering Aspects of Waterflooding, SPE Monograph 3
+    (from memory). Welge, H.J., 1952, Trans. AIME 195, 91-98.
+
+    Examples
+    --------
+    >>> from flood.relative_permeability import Corey
+    >>> round(breakthrough_mobility_ratio(Corey(0, 0, 1, 1, 2, 2), 1.0, 1.0, 0.0), 5)
+    0.68629
+    """
+    sol = solution if solution is not None else buckley_leverett(relperm, mu_w, mu_o, swi, gravity)
+    krw, _ = relperm.kr(sol.average_saturation_at_breakthrough)
+    _, kro = relperm.kr(sol.swi)
+    if not kro > 0:
+        raise FloodInputError("relperm.kro", float(kro), "kro(Swi) > 0", "oil must be mobile ahead of the front")
+    return float((krw / mu_w) / (kro / mu_o))

@@ -19,7 +19,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 from scipy import integrate, optimize
 
-from flood.displacement import buckley_leverett, welge_tangent
+from flood.displacement import breakthrough_mobility_ratio, buckley_leverett, welge_tangent
 from flood.errors import FloodInputError
 from flood.fractional_flow import fractional_flow, fractional_flow_derivative
 from flood.relative_permeability import Corey
@@ -209,3 +209,38 @@ def test_bad_inputs():
         buckley_leverett(rp, 0.6, 3.0, swi=0.8)
     with pytest.raises(FloodInputError, match=r"fluids\.mu_o_cp = -1.*> 0 cp"):
         buckley_leverett(rp, 0.6, -1.0)
+
+
+def test_breakthrough_mobility_ratio_quadratic_closed_form():
+    """Quadratic Corey, Swc = Sor = 0, equal viscosities: the tangent from the origin gives
+    S̄w,bt = 1/f'(Sf) = 2(√2 - 1) (0.828427 as printed in the published-check notes), so
+    M_bt = krw(S̄w,bt)/kro(0) = 4(√2 - 1)² = 12 - 8√2 (derived; definition after Craig 1971, from memory)."""
+    m = breakthrough_mobility_ratio(Corey(0.0, 0.0, 1.0, 1.0, 2.0, 2.0), 1.0, 1.0, 0.0)
+    assert m == pytest.approx(12.0 - 8.0 * np.sqrt(2.0), rel=1e-9)
+
+
+@pytest.mark.parametrize("mu_o", [0.2, 0.5, 1.0])
+def test_breakthrough_mobility_ratio_is_endpoint_for_piston(mu_o):
+    """Straight lines with M <= 1 displace like a piston (S̄w,bt = 1 - Sor), so M_bt equals the
+    endpoint ratio krw_end μo / (kro_end μw) (method of characteristics; [BL1942])."""
+    rp = Corey(0.0, 0.0, 1.0, 1.0, 1.0, 1.0)
+    assert breakthrough_mobility_ratio(rp, 1.0, mu_o) == pytest.approx(mu_o, rel=1e-9)
+
+
+def test_breakthrough_mobility_ratio_against_independent_tangent():
+    """Corey case with Swc = 0.2, Sor = 0.25: the Welge tangent found independently with
+    scipy.optimize.brentq on f(S) - Swi-chord slope [WELGE1952], then krw at S̄w,bt."""
+    rp = Corey(0.2, 0.25, 0.35, 0.9, 2.5, 2.0)
+    mu_w, mu_o = 0.6, 3.0
+
+    def f(s):
+        return float(fractional_flow(rp, s, mu_w, mu_o))
+
+    def df(s):
+        return float(fractional_flow_derivative(rp, s, mu_w, mu_o))
+
+    sf = optimize.brentq(lambda s: df(s) * (s - 0.2) - f(s), 0.3, 0.749)
+    s_bar = sf + (1.0 - f(sf)) / df(sf)
+    krw = 0.35 * ((s_bar - 0.2) / 0.55) ** 2.5
+    expected = (krw / mu_w) / (0.9 / mu_o)
+    assert breakthrough_mobility_ratio(rp, mu_w, mu_o, 0.2) == pytest.approx(expected, rel=1e-6)

@@ -56,3 +56,23 @@ def test_errors_one_line_exit_2_no_file(tmp_path):
     p = subprocess.run([sys.executable, "-m", "flood", "crosscheck", DEMO, "--capillary", "brooks_corey"],
                        capture_output=True, text=True, cwd=ROOT)
     assert p.returncode == 2 and p.stderr.startswith("error: --capillary brooks_corey")
+
+
+def test_sweep_of_scenario_reads_correlation_at_mobility_ratio_behind_front(capsys):
+    """With a scenario the correlation [Fassihi 1986] is read at M behind the front (Craig 1971, from
+    memory) and its breakthrough is also given in total pore volumes, W_bt = E_A (S̄w,bt - Swi)."""
+    from flood.areal_sweep import fassihi_areal_sweep
+    from flood.displacement import breakthrough_mobility_ratio, buckley_leverett
+    from flood.scenario import build_case, load_scenario
+
+    assert main(["sweep", "--pattern", "five_spot", "--cells", "16", "--max-pvi", "0.8", DEMO]) == 0
+    out = json.loads(capsys.readouterr().out)
+    case = build_case(load_scenario(DEMO))
+    m_bt = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+    assert out["breakthrough_mobility_ratio"] == pytest.approx(m_bt)
+    assert out["breakthrough_mobility_ratio"] < out["endpoint_mobility_ratio"]
+    e = float(fassihi_areal_sweep("five_spot", m_bt, 0.0))
+    assert out["correlation_areal_sweep_at_breakthrough"] == pytest.approx(e)
+    sol = buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+    assert out["correlation_breakthrough_pvi_total"] == pytest.approx(e * (sol.average_saturation_at_breakthrough - case.swi))
+    assert out["pvi_basis"] == "total pore volume"

@@ -18,6 +18,7 @@ from pathlib import Path
 import pandas as pd
 
 from flood.cli import SCREENING_NOTE
+from flood.displacement import breakthrough_mobility_ratio
 from flood.errors import FloodInputError
 from flood.forecast import FORECAST_COLUMNS, endpoint_mobility_ratio
 from flood.output import table_bytes
@@ -517,7 +518,8 @@ def run_sweep(scenario: dict, pattern: str, d_over_a, method: str, cells, map_pv
         return numerical_sweep(pattern, d_over_a=d_over_a, cells=cells, relperm=case.relperm, mu_w=case.mu_w,
                                mu_o=case.mu_o, swi=case.swi, max_pvi=max_pvi, map_pvi=(map_pvi,), progress=progress)
     if method == "correlation":
-        m = float(endpoint_mobility_ratio(case.relperm.krw_end, case.relperm.kro_end, case.mu_w, case.mu_o))
+        # the piston-displacement correlation is read at the mobility ratio behind the front
+        m = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
         return areal_sweep(pattern, mobility_ratio=m, method="correlation", d_over_a=d_over_a, max_pvi=max_pvi)
     if method == "streamline":
         return areal_sweep(pattern, mobility_ratio=1.0, method="streamline", d_over_a=d_over_a, max_pvi=max_pvi)

@@ -319,8 +319,11 @@ def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=N
         sweep = adapter.run_sweep(current, pattern, d_over_a, method, cells, map_pvi, progress)
     except FloodInputError as err:
         return no_update, no_update, f"Not run: {err}"
-    msg = (f"{pattern.replace('_', ' ')}, {method}, M = {sweep.mobility_ratio:.3g}: areal sweep at breakthrough "
-           f"{sweep.areal_sweep_at_breakthrough:.3f} at {sweep.breakthrough_pvi:.3f} PV ({sweep.seconds:.2f} s).")
+    m_label = {"correlation": "M behind the front", "numerical": "endpoint M"}.get(method, "M")
+    grid = f", {sweep.cells} cells, {sweep.stencil}-point" if sweep.stencil else ""
+    msg = (f"{pattern.replace('_', ' ')}, {method}{grid}, {m_label} = {sweep.mobility_ratio:.3g}: areal sweep at "
+           f"breakthrough {sweep.areal_sweep_at_breakthrough:.3f} at {sweep.breakthrough_pvi:.3f} PV "
+           f"({sweep.seconds:.2f} s).")
     return figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep), msg
 
 

@@ -107,10 +107,13 @@ def run_sweep(args) -> int:
         raise FloodInputError("--mobility-ratio", args.mobility_ratio, "either a mobility ratio or a scenario, not both")
     kwargs = dict(method=args.method, d_over_a=args.d_over_a, cells=args.cells, max_pvi=args.max_pvi)
     if args.scenario:
+        from ..displacement import breakthrough_mobility_ratio
         from ..forecast import endpoint_mobility_ratio
 
         _, case = load_case(args.scenario)
-        m = float(endpoint_mobility_ratio(case.relperm.krw_end, case.relperm.kro_end, case.mu_w, case.mu_o))
+        m_end = float(endpoint_mobility_ratio(case.relperm.krw_end, case.relperm.kro_end, case.mu_w, case.mu_o))
+        # piston-displacement correlations are read at the mobility ratio behind the front
+        m = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
         if args.method in ("correlation",):
             result = areal_sweep(args.pattern, mobility_ratio=m, **kwargs)
         else:
@@ -121,16 +124,28 @@ def run_sweep(args) -> int:
             result = areal_sweep(args.pattern, mobility_ratio=None, relperm=case.relperm, mu_w=case.mu_w,
                                  mu_o=case.mu_o, swi=case.swi, **kwargs)
     else:
-        m = 1.0 if args.mobility_ratio is None else float(args.mobility_ratio)
+        m = m_end = 1.0 if args.mobility_ratio is None else float(args.mobility_ratio)
         result = areal_sweep(args.pattern, mobility_ratio=m, **kwargs)
     summary = result.summary()
-    summary["endpoint_mobility_ratio"] = m
+    summary["endpoint_mobility_ratio"] = m_end
+    two_phase = bool(args.scenario) and result.method == "numerical"
+    summary["pvi_basis"] = "total pore volume" if two_phase else "displaceable pore volume"
+    if args.scenario:
+        summary["breakthrough_mobility_ratio"] = m
     sheets = {"curve": result.curve}
     if result.method != "correlation" and args.pattern in FASSIHI_COEFFICIENTS and 0 < m <= 10 and (
             args.pattern == "five_spot" or args.d_over_a == 1.0):
         corr = correlation_sweep(args.pattern, mobility_ratio=m, max_pvi=args.max_pvi)
         summary["correlation_areal_sweep_at_breakthrough"] = corr.areal_sweep_at_breakthrough
         summary["correlation_breakthrough_pvi"] = corr.breakthrough_pvi
+        if two_phase:
+            # the correlation is in displaceable pore volumes: the swept area holds the Welge
+            # average saturation behind the front, so W_bt = E_A (S̄w,bt - Swi) total PV (Craig 1971, from memory)
+            from ..displacement import buckley_leverett
+
+            sol = buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+            summary["correlation_breakthrough_pvi_total"] = corr.areal_sweep_at_breakthrough * (
+                sol.average_saturation_at_breakthrough - sol.swi)
         sheets["correlation"] = corr.curve
     if args.output:
         sheets["summary"] = _summary_frame(summary)
