@@ -8,8 +8,12 @@ results give the tubes directly; a correlation or numerical curve is cut into eq
 the quantiles of fd (the tubes still unswept at the end of the curve share the unswept volume).
 
 Each tube is then a linear Buckley-Leverett/Welge displacement receiving W/τ_k of its own pore
-volume. With layers (non-communicating, same pattern, rate split by k h, equal porosity) layer i
-receives W k_i/k̄ with k̄ the thickness-weighted mean permeability.
+volume. With the scenario's layers (non-communicating, each holding the same pattern), the
+layered engine of :mod:`flood.layers` (Dykstra-Parsons or layered fractional flow, one pressure
+drop across all layers) gives each layer's own pore volumes injected W_i and its share of the
+injection as the flood goes on, and the tubes of layer i receive W_i/τ_k. An explicit list of
+(k, h) layers instead splits the rate by k h once and for all (layer i receives W k_i/k̄, k̄ the
+thickness-weighted mean, equal porosity): the Dykstra-Parsons split at M = 1.
 
 Assumptions: the tubes keep their shape and rate shares for the whole flood (exact at M = 1 in a
 homogeneous pattern, approximate otherwise: the sweep curve used should be for the flood's own
@@ -80,7 +84,7 @@ def stream_tubes(sweep, tubes: int = 200):
 
 
 def pattern_forecast(case, sweep, *, points: int = 200, end_pvi: float | None = None, layers=None,
-                     tubes: int = 200) -> pd.DataFrame:
+                     tubes: int = 200, economic_limit: bool = False) -> pd.DataFrame:
     """Forecast a pattern waterflood versus time from its areal sweep and the displacement.
 
     Parameters
@@ -94,9 +98,13 @@ def pattern_forecast(case, sweep, *, points: int = 200, end_pvi: float | None = 
     end_pvi : float, optional
         Last PVI [total PV]; default the scenario's max PVI.
     layers : sequence of (permeability_md, thickness_ft), optional
-        Non-communicating layers; default one layer.
+        Non-communicating layers with a fixed k h rate split. Default: the scenario's own layers
+        (``case.layers``) through the layered engine when it has them, else one layer.
     tubes : int
         Tubes to cut a sweep curve into [-].
+    economic_limit : bool
+        End the table where the surface water cut first reaches the scenario's economic water
+        cut (the last row linearly interpolated between the two rows around it).
 
     Returns
     -------
@@ -110,41 +118,64 @@ def pattern_forecast(case, sweep, *, points: int = 200, end_pvi: float | None = 
 
     Notes
     -----
-    Recovery RF(W) = Σ_i h_i/Σh Σ_k w_k τ_k RF_BL(W k_i/(k̄ τ_k)), fw(W) = Σ_i k_i h_i/Σkh
-    Σ_k w_k fw_BL(W k_i/(k̄ τ_k)), RF_BL = (Swbar - Swi)/(1 - Swi) from Welge. The swept share
-    counts each tube up to its Buckley-Leverett front, min(W_tube/W_bt, 1) of its pore volume.
+    Recovery RF(W) = Σ_i p_i Σ_k w_k τ_k RF_1(W_i/τ_k), fw(W) = Σ_i s_i Σ_k w_k fw_1(W_i/τ_k), with
+    RF_1 = (Swbar - Swi)/(1 - Swi) and fw_1 of the linear displacement (Welge; piston-like for the
+    Dykstra-Parsons layer method). With the scenario's layers p_i = Vp_i/Vp and W_i, s_i(W) come
+    from :class:`flood.layers.LayerStack`; with a (k, h) list p_i = h_i/Σh, s_i = k_i h_i/Σ k h,
+    W_i = W k_i/k̄. The swept share counts each tube up to its front, min(W_tube/W_bt, 1) of its
+    pore volume.
 
     References
     ----------
     Higgins & Leighton, 1962 (from memory); Welge, 1952; Dykstra & Parsons, 1950.
     """
+    table = _pattern_table(case, sweep, points, end_pvi, layers, tubes)
+    return _cut_at_economic_limit(table, case.economic_water_cut) if economic_limit else table
+
+
+def _cut_at_economic_limit(table: pd.DataFrame, limit: float) -> pd.DataFrame:
+    cut = table["water_cut"].to_numpy()
+    k = int(np.argmax(cut >= limit)) if np.any(cut >= limit) else -1
+    if k <= 0:
+        return table
+    a, b = table.iloc[k - 1], table.iloc[k]
+    t = float((limit - cut[k - 1]) / (cut[k] - cut[k - 1])) if cut[k] > cut[k - 1] else 1.0
+    last = a + t * (b - a)
+    return pd.concat([table.iloc[:k], last.to_frame().T], ignore_index=True)
+
+
+def _pattern_table(case, sweep, points, end_pvi, layers, tubes):
     if case.sgi > 0:
         raise FloodInputError("saturations.sgi", case.sgi, "0 for the pattern forecast",
                               "gas fill-up is not modelled in the stream tubes")
     if not (isinstance(points, (int, np.integer)) and 2 <= points <= 100_000):
         raise FloodInputError("points", points, "a whole number 2 <= points <= 100000")
-    if layers is None:
-        k = np.array([1.0])
-        h = np.array([1.0])
-    else:
-        arr = np.asarray(layers, dtype=float)
-        if arr.ndim != 2 or arr.shape[1] != 2 or arr.shape[0] < 1 or np.any(~np.isfinite(arr)) or np.any(arr <= 0):
-            raise FloodInputError("layers", layers, "rows of (permeability_md > 0, thickness_ft > 0)")
-        k, h = arr[:, 0], arr[:, 1]
-    kbar = float(np.sum(k * h) / np.sum(h))
     end = case.max_pvi if end_pvi is None else float(end_pvi)
-    sol = buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
-    w, tau = stream_tubes(sweep, tubes)
     pvi = np.linspace(0.0, end, points)
-    tube_pvi = pvi[:, None, None] * (k / kbar)[None, :, None] / tau[None, None, :]
-    _, fw_t, sbar_t = sol.outlet(tube_pvi)
+    if layers is None and getattr(case, "layers", None) is not None:
+        disp, layer_pvi, pore_share, rate_share, vp = _stack_split(case, pvi)
+    else:
+        disp = buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+        if layers is None:
+            k = h = np.array([1.0])
+        else:
+            arr = np.asarray(layers, dtype=float)
+            if (arr.ndim != 2 or arr.shape[1] != 2 or arr.shape[0] < 1 or np.any(~np.isfinite(arr))
+                    or np.any(arr <= 0)):
+                raise FloodInputError("layers", layers, "rows of (permeability_md > 0, thickness_ft > 0)")
+            k, h = arr[:, 0], arr[:, 1]
+        layer_pvi = pvi[:, None] * (k / float(np.sum(k * h) / np.sum(h)))[None, :]
+        pore_share = h / h.sum()
+        rate_share = np.broadcast_to(k * h / np.sum(k * h), layer_pvi.shape)
+        vp = float(pore_volume(case.area_acres, case.thickness_ft, case.porosity))
+    w, tau = stream_tubes(sweep, tubes)
+    tube_pvi = layer_pvi[:, :, None] / tau[None, None, :]
+    _, fw_t, sbar_t = disp.outlet(tube_pvi)
     rf_t = (sbar_t - case.swi) / (1.0 - case.swi)
-    pv_share = (h / h.sum())[None, :, None] * (w * tau)[None, None, :]
-    rate_share = (k * h / np.sum(k * h))[None, :, None] * w[None, None, :]
-    rf = np.sum(pv_share * rf_t, axis=(1, 2))
-    fw = np.sum(rate_share * fw_t, axis=(1, 2))
-    ea = np.sum(pv_share * np.minimum(tube_pvi / sol.breakthrough_pvi, 1.0), axis=(1, 2))
-    vp = float(pore_volume(case.area_acres, case.thickness_ft, case.porosity))
+    pv_weight = pore_share[None, :, None] * (w * tau)[None, None, :]
+    rf = np.sum(pv_weight * rf_t, axis=(1, 2))
+    fw = np.sum(rate_share[:, :, None] * w[None, None, :] * fw_t, axis=(1, 2))
+    ea = np.sum(pv_weight * np.minimum(tube_pvi / disp.breakthrough_pvi, 1.0), axis=(1, 2))
     ooip = float(original_oil_in_place(vp, case.swi, case.bo))
     days = case.injection.days_at_cumulative(pvi * vp / case.bw)
     q_res = case.injection.rate(days) * case.bw
@@ -154,3 +185,29 @@ def pattern_forecast(case, sweep, *, points: int = 200, end_pvi: float | None = 
         "oil_rate_stb_d": q_res * (1.0 - fw) / case.bo,
         "cum_oil_stb": rf * ooip, "recovery_factor": rf,
     })
+
+
+def _stack_split(case, pvi):
+    """The scenario's layers through the common-Δp layered engine at field PVIs ``pvi``.
+
+    Returns the layer displacement, each layer's own PVI and injection share (rows of ``pvi``),
+    the layers' pore-volume shares and the total pore volume [rb].
+    """
+    from .layers import _check_case_for_layers, fractional_flow_displacement, layer_stack, piston_displacement
+
+    layers = case.layers
+    _check_case_for_layers(case, layers)
+    if layers.method == "dykstra_parsons":
+        disp = piston_displacement(case.relperm, case.mu_w, case.mu_o, case.swi)
+    else:
+        disp = fractional_flow_displacement(buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi))
+    stack = layer_stack(layers, disp, case.area_acres)
+    # common-time grid reaching past the last PVI (the field PVI grows without bound with τ)
+    tau_top = 2.0 * float(np.max(stack.breakthrough_tau))
+    for _ in range(200):
+        if float(stack.field_pvi(np.array([tau_top]))[0]) > pvi[-1]:
+            break
+        tau_top *= 2.0
+    st = stack.state(stack.tau_at_pvi(pvi, stack.time_grid(tau_top)))
+    vp = float(np.sum(pore_volume(case.area_acres, layers.thickness_ft, layers.porosity)))
+    return disp, st["q"], stack.pore_fraction, st["share"], vp

@@ -7,6 +7,7 @@ import subprocess
 import sys
 from pathlib import Path
 
+import numpy as np
 import pandas as pd
 import pytest
 
@@ -76,3 +77,28 @@ def test_sweep_of_scenario_reads_correlation_at_mobility_ratio_behind_front(caps
     sol = buckley_leverett(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
     assert out["correlation_breakthrough_pvi_total"] == pytest.approx(e * (sol.average_saturation_at_breakthrough - case.swi))
     assert out["pvi_basis"] == "total pore volume"
+
+
+@pytest.mark.parametrize("ext", [".csv", ".xlsx"])
+def test_sweep_forecast_writes_pattern_forecast_to_economic_limit(tmp_path, capsys, ext):
+    from flood.pattern_forecast import PATTERN_FORECAST_COLUMNS
+    from flood.scenario import build_case, load_scenario
+
+    path = tmp_path / f"pattern{ext}"
+    assert main(["sweep", "--pattern", "five_spot", "--method", "correlation", DEMO, "--forecast", str(path)]) == 0
+    out = json.loads(capsys.readouterr().out)
+    table = pd.read_csv(path) if ext == ".csv" else pd.read_excel(path, sheet_name="pattern_forecast")
+    assert list(table.columns) == list(PATTERN_FORECAST_COLUMNS)
+    limit = build_case(load_scenario(DEMO)).economic_water_cut
+    assert table["water_cut"].iloc[-1] == pytest.approx(limit, abs=1e-9)
+    assert np.all(table["water_cut"].iloc[:-1] < limit)
+    assert out["pattern_forecast_end_reason"] == "economic water cut"
+    assert out["pattern_recovery_factor_at_forecast_end"] == pytest.approx(table["recovery_factor"].iloc[-1])
+
+
+def test_sweep_forecast_needs_a_scenario(tmp_path, capsys):
+    path = tmp_path / "pattern.csv"
+    assert main(["sweep", "--pattern", "five_spot", "--forecast", str(path)]) == 2
+    err = capsys.readouterr().err
+    assert "--forecast" in err and "SCENARIO.json" in err and len(err.strip().splitlines()) == 1
+    assert not path.exists()

@@ -60,3 +60,27 @@ def test_equal_layers_equal_one_layer(case):
 def test_errors(case):
     with pytest.raises(FloodInputError, match=r"layers = .*rows of \(permeability_md > 0, thickness_ft > 0\)"):
         pattern_forecast(case, _one_tube(), layers=[(-1.0, 2.0)])
+
+
+@pytest.mark.parametrize("method", ["layered_fractional_flow", "dykstra_parsons"])
+def test_one_tube_with_scenario_layers_is_the_layered_forecast(method):
+    """With the scenario's layers and a single tube (linear flow) the pattern forecast must be the
+    layered engine's own forecast (itself checked against Dykstra & Parsons 1950 in test_layers)."""
+    import json
+    from pathlib import Path
+
+    from flood.layers import layered_study
+    from flood.scenario import load_scenario
+
+    src = Path(__file__).resolve().parent.parent / "sample_data" / "demo_layered_scenario.json"
+    d = json.loads(src.read_text())
+    d["layers"]["method"] = method
+    d["layers"]["file"] = str(src.parent / d["layers"]["file"])
+    case = build_case(parse_scenario(d))
+    ref = layered_study(case).forecast
+    pf = pattern_forecast(case, _one_tube(), points=80, end_pvi=float(ref["pvi"].iloc[-1]))
+    rf = np.interp(pf["pvi"], ref["pvi"], ref["recovery_factor"])
+    assert np.allclose(pf["recovery_factor"], rf, atol=1e-4)
+    cut = np.interp(pf["pvi"], ref["pvi"], ref["water_cut"])
+    # the cut jumps at each layer breakthrough: compare away from the jumps
+    assert np.median(np.abs(pf["water_cut"] - cut)) < 1e-4

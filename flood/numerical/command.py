@@ -103,6 +103,11 @@ def run_sweep(args) -> int:
 
     if args.output:
         check_output_path(args.output)
+    if args.forecast:
+        if not args.scenario:
+            raise FloodInputError("--forecast", args.forecast, "a SCENARIO.json beside it",
+                                  "the forecast needs the scenario's rock, fluids and injection")
+        check_output_path(args.forecast)
     if args.scenario and args.mobility_ratio is not None:
         raise FloodInputError("--mobility-ratio", args.mobility_ratio, "either a mobility ratio or a scenario, not both")
     kwargs = dict(method=args.method, d_over_a=args.d_over_a, cells=args.cells, max_pvi=args.max_pvi)
@@ -147,12 +152,41 @@ def run_sweep(args) -> int:
             summary["correlation_breakthrough_pvi_total"] = corr.areal_sweep_at_breakthrough * (
                 sol.average_saturation_at_breakthrough - sol.swi)
         sheets["correlation"] = corr.curve
+    forecast = None
+    if args.forecast:
+        forecast = _pattern_forecast_of(args, case, result, m)
+        last = forecast.iloc[-1]
+        summary["pattern_forecast_end_days"] = float(last["days"])
+        summary["pattern_recovery_factor_at_forecast_end"] = float(last["recovery_factor"])
+        summary["pattern_water_cut_at_forecast_end"] = float(last["water_cut"])
+        summary["pattern_forecast_end_reason"] = ("economic water cut" if last["water_cut"] >= case.economic_water_cut - 1e-9
+                                                  else "max_pvi")
     if args.output:
         sheets["summary"] = _summary_frame(summary)
         write_tables(args.output, sheets, "curve")
         summary["output"] = str(args.output)
+    if forecast is not None:
+        write_tables(args.forecast, {"pattern_forecast": forecast}, "pattern_forecast")
+        summary["forecast_output"] = str(args.forecast)
     print_json(summary)
     return 0
+
+
+def _pattern_forecast_of(args, case, result, m_bt):
+    """Pattern forecast of the scenario: stream tubes of the piston-like sweep at M behind the front.
+
+    A two-phase finite-volume sweep already holds the Buckley-Leverett displacement, so it cannot
+    serve as the tubes (each tube runs its own displacement); the piston-like sweep at M_bt is
+    computed on the same grid instead.
+    """
+    from ..areal_sweep import areal_sweep
+    from ..pattern_forecast import pattern_forecast
+
+    tubes = result
+    if result.method == "numerical":
+        tubes = areal_sweep(args.pattern, mobility_ratio=min(max(m_bt, 0.05), 50.0), method="numerical",
+                            d_over_a=args.d_over_a, cells=args.cells, max_pvi=max(args.max_pvi, 2.0))
+    return pattern_forecast(case, tubes, economic_limit=True)
 
 
 def register(subparsers) -> None:
@@ -181,4 +215,6 @@ def register(subparsers) -> None:
     s.add_argument("--cells", type=int, default=None, help="cells along the longer side of the element")
     s.add_argument("--max-pvi", type=float, default=3.0, help="last PVI of the curve (default 3)")
     s.add_argument("-o", "--output", help="write the curve versus PVI: .csv, .json or .xlsx")
+    s.add_argument("--forecast", metavar="FILE",
+                   help="with a scenario: write the pattern forecast versus time (.csv, .json or .xlsx)")
     s.set_defaults(handler=run_sweep)
