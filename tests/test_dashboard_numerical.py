@@ -66,3 +66,24 @@ def test_app_has_numerical_background_callbacks(tmp_path):
     assert ids.NUM_FIGURE in outputs and ids.SWEEP_FIGURE in outputs
     layout = str(app.layout())
     assert "Numerical check" in layout
+
+
+def test_sweep_shows_the_correlation_beside_it(demo):
+    """Streamlines (M = 1) get the Fassihi (1986) curve at M = 1 overlaid and its value in the message;
+    a two-phase finite-volume run gets the value at M behind the front (engine function) in the message."""
+    from flood.areal_sweep import fassihi_areal_sweep
+    from flood.displacement import breakthrough_mobility_ratio
+    from flood.scenario import build_case
+
+    _, curve, msg = callbacks.sweep_outputs(demo, "five_spot", 1.0, "streamline", 40, 0.4)
+    go.Figure(curve)  # plotly validates every trace property
+    names = [t["name"] for t in curve["data"]]
+    assert any("Fassihi" in n for n in names)
+    assert f"{float(fassihi_areal_sweep('five_spot', 1.0, 0.0)):.3f} at breakthrough" in msg
+    _, curve, msg = callbacks.sweep_outputs(demo, "five_spot", 1.0, "numerical", 12, 0.4)
+    assert not any("Fassihi" in t["name"] for t in curve["data"])
+    case = build_case(adapter.parse_inline(demo))
+    m_bt = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+    assert f"{float(fassihi_areal_sweep('five_spot', m_bt, 0.0)):.3f} at breakthrough" in msg
+    _, _, msg = callbacks.sweep_outputs(demo, "direct_line", 1.5, "streamline", 40, 0.4)
+    assert "Fassihi" not in msg  # no data for d/a = 1.5

@@ -524,3 +524,26 @@ def run_sweep(scenario: dict, pattern: str, d_over_a, method: str, cells, map_pv
     if method == "streamline":
         return areal_sweep(pattern, mobility_ratio=1.0, method="streamline", d_over_a=d_over_a, max_pvi=max_pvi)
     raise FloodInputError("method", method, "one of " + ", ".join(SWEEP_METHODS))
+
+
+def sweep_correlation_beside(scenario: dict, sweep):
+    """The Fassihi correlation at the same mobility ratio as ``sweep``, or None where it has no data.
+
+    Same M means: 1 beside streamlines, the mobility ratio behind the front beside a two-phase
+    finite-volume run (engine: ``breakthrough_mobility_ratio``); nothing beside the correlation
+    itself. Only the five-spot, and line drives at d/a = 1, within 0 < M <= 10 (Fassihi 1986).
+    """
+    from flood.areal_sweep import FASSIHI_COEFFICIENTS, FASSIHI_M_RANGE, correlation_sweep
+
+    if sweep.method == "correlation" or sweep.pattern not in FASSIHI_COEFFICIENTS:
+        return None
+    if sweep.pattern != "five_spot" and sweep.d_over_a != 1.0:
+        return None
+    if sweep.method == "streamline":
+        m = 1.0
+    else:
+        case = build_case(parse_inline(scenario))
+        m = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+    if not (FASSIHI_M_RANGE[0] < m <= FASSIHI_M_RANGE[1]):
+        return None
+    return correlation_sweep(sweep.pattern, mobility_ratio=m, max_pvi=float(sweep.curve["pvi"].iloc[-1]))

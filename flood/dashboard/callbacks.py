@@ -324,7 +324,13 @@ def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=N
     msg = (f"{pattern.replace('_', ' ')}, {method}{grid}, {m_label} = {sweep.mobility_ratio:.3g}: areal sweep at "
            f"breakthrough {sweep.areal_sweep_at_breakthrough:.3f} at {sweep.breakthrough_pvi:.3f} PV "
            f"({sweep.seconds:.2f} s).")
-    return figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep), msg
+    corr = adapter.sweep_correlation_beside(current, sweep)
+    if corr is not None:
+        msg += (f" Beside it, the Fassihi (1986) correlation at M = {corr.mobility_ratio:.3g}: "
+                f"{corr.areal_sweep_at_breakthrough:.3f} at breakthrough.")
+    # the curves share the PVI basis only when neither is a two-phase run (total pore volumes)
+    overlay = corr if corr is not None and sweep.method == "streamline" else None
+    return figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep, overlay), msg
 
 
 def crosscheck_job(set_progress, n_clicks, current, cells, entry_pressure, pore_index, gravity):

@@ -230,8 +230,8 @@ def sweep_map_figure(sweep) -> dict:
     return fig
 
 
-def sweep_curve_figure(sweep) -> dict:
-    """Areal sweep and displacing-fluid fraction in production versus PVI."""
+def sweep_curve_figure(sweep, correlation=None) -> dict:
+    """Areal sweep and displacing-fluid fraction in production versus PVI (and a correlation's sweep)."""
     c = sweep.curve
     fig = _figure(f"Areal sweep, {sweep.pattern.replace('_', ' ')} ({sweep.method})",
                   _axis("Pore volumes injected [PV]"), _axis("Areal sweep [fraction]", range=[0, 1.02]),
@@ -239,4 +239,10 @@ def sweep_curve_figure(sweep) -> dict:
     fig["data"] += [_line(c["pvi"].to_numpy(), c["areal_sweep"].to_numpy(), "areal sweep"),
                     _line(c["pvi"].to_numpy(), c["fd"].to_numpy(), "fd", SECOND, 2.0, yaxis="y2"),
                     _marker([sweep.breakthrough_pvi], [sweep.areal_sweep_at_breakthrough], "breakthrough")]
+    if correlation is not None:
+        cc = correlation.curve
+        trace = _line(cc["pvi"].to_numpy(), cc["areal_sweep"].to_numpy(),
+                      f"areal sweep, Fassihi correlation (M = {correlation.mobility_ratio:.3g})", CURRENT, 1.6)
+        trace["line"]["dash"] = "dash"
+        fig["data"].append(trace)
     return fig
