@@ -10,6 +10,8 @@ from __future__ import annotations
 
 import numpy as np
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 import scipy.sparse as sp
 from scipy.sparse.linalg import spsolve
 
@@ -89,3 +91,18 @@ def test_pressure_solver_matches_direct_solve_when_weights_change():
         expected = spsolve(a.tocsc(), q)
         assert np.max(np.abs(p - expected)) < 1e-8 * np.max(np.abs(expected))
     assert solver.krylov_solves >= 1
+
+
+@settings(max_examples=60, deadline=None)
+@given(nx=st.integers(3, 12), ny=st.integers(3, 12), dx=st.floats(0.05, 2.0),
+       aspect=st.floats(0.5, 2.1), gx=st.floats(-5, 5), gy=st.floats(-5, 5), k=st.floats(0.01, 1e4))
+def test_nine_point_linear_fields_property(nx, ny, dx, aspect, gx, gy, k):
+    """Any homogeneous grid and any linear field: every interior cell balances (consistency of the
+    compact nine-point stencil, common practice)."""
+    g = CartesianGrid(nx, ny, dx, dx / aspect, permeability=k, stencil=9)
+    x, y = g.cell_centers()
+    net = _net_outflow(g, gx * x + gy * y)
+    i, j = np.arange(g.cells) % nx, np.arange(g.cells) // nx
+    interior = (i > 0) & (i < nx - 1) & (j > 0) & (j < ny - 1)
+    scale = k * (abs(gx) + abs(gy)) * max(g.dx, g.dy) + 1e-300
+    assert np.max(np.abs(net[interior])) <= 1e-11 * scale
