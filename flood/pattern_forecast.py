@@ -49,6 +49,37 @@ PATTERN_FORECAST_COLUMNS = {
 }
 
 
+def forecast_sweep(case, sweep, progress=None):
+    """The piston-like areal sweep whose stream tubes feed :func:`pattern_forecast` for ``case``.
+
+    Parameters
+    ----------
+    case : flood.scenario.FloodCase
+    sweep : flood.numerical.sweep.ArealSweepResult
+        Any areal sweep of the pattern.
+    progress : callable, optional
+        ``progress(fraction)`` of a finite-volume run, when one is needed.
+
+    Returns
+    -------
+    flood.numerical.sweep.ArealSweepResult
+        ``sweep`` itself when it is piston-like (streamlines, correlation, finite volumes at a
+        mobility ratio); for a two-phase finite-volume run, which already holds the
+        Buckley-Leverett displacement that every tube adds again, the piston-like finite-volume
+        sweep on the same grid at the mobility ratio behind the front
+        (:func:`flood.displacement.breakthrough_mobility_ratio`, after Craig 1971, from memory).
+    """
+    if sweep.pvi_basis != "total":
+        return sweep
+    from .displacement import breakthrough_mobility_ratio
+    from .numerical.sweep import numerical_sweep
+
+    m_bt = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
+    return numerical_sweep(sweep.pattern, mobility_ratio=min(max(m_bt, 0.05), 50.0),
+                           d_over_a=sweep.d_over_a or 1.0, cells=sweep.cells, max_pvi=2.0,
+                           stencil=sweep.stencil or 9, progress=progress)
+
+
 def stream_tubes(sweep, tubes: int = 200):
     """Stream tubes (rate share w_k, time of flight τ_k [PV]) equivalent to an areal sweep result.
 

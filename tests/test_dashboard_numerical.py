@@ -45,9 +45,9 @@ def test_crosscheck_bad_inputs_message(demo, cells, pe, lam, expected):
 
 @pytest.mark.parametrize("method", ["streamline", "numerical", "correlation"])
 def test_sweep_outputs(demo, method):
-    fmap, curve, msg = callbacks.sweep_outputs(demo, "five_spot", 1.0, method, 16, 0.4)
-    go.Figure(fmap), go.Figure(curve)
-    assert "areal sweep at breakthrough" in msg
+    fmap, curve, msg, pattern = callbacks.sweep_outputs(demo, "five_spot", 1.0, method, 16, 0.4)
+    go.Figure(fmap), go.Figure(curve), go.Figure(pattern)
+    assert "areal sweep at breakthrough" in msg and "Pattern forecast: recovery" in msg
     if method == "numerical":
         assert fmap["data"][0]["type"] == "heatmap" and np.asarray(fmap["data"][0]["z"]).shape == (16, 16)
     if method == "streamline":
@@ -57,7 +57,7 @@ def test_sweep_outputs(demo, method):
 
 def test_sweep_bad_input(demo):
     out = callbacks.sweep_outputs(demo, "five_spot", 1.0, "numerical", 500, 0.4)
-    assert out[0] is no_update and "cells = 500" in out[2]
+    assert out[0] is no_update and out[3] is no_update and "cells = 500" in out[2]
 
 
 def test_app_has_numerical_background_callbacks(tmp_path):
@@ -75,15 +75,31 @@ def test_sweep_shows_the_correlation_beside_it(demo):
     from flood.displacement import breakthrough_mobility_ratio
     from flood.scenario import build_case
 
-    _, curve, msg = callbacks.sweep_outputs(demo, "five_spot", 1.0, "streamline", 40, 0.4)
+    _, curve, msg, _ = callbacks.sweep_outputs(demo, "five_spot", 1.0, "streamline", 40, 0.4)
     go.Figure(curve)  # plotly validates every trace property
     names = [t["name"] for t in curve["data"]]
     assert any("Fassihi" in n for n in names)
     assert f"{float(fassihi_areal_sweep('five_spot', 1.0, 0.0)):.3f} at breakthrough" in msg
-    _, curve, msg = callbacks.sweep_outputs(demo, "five_spot", 1.0, "numerical", 12, 0.4)
+    _, curve, msg, _ = callbacks.sweep_outputs(demo, "five_spot", 1.0, "numerical", 12, 0.4)
     assert not any("Fassihi" in t["name"] for t in curve["data"])
     case = build_case(adapter.parse_inline(demo))
     m_bt = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
     assert f"{float(fassihi_areal_sweep('five_spot', m_bt, 0.0)):.3f} at breakthrough" in msg
-    _, _, msg = callbacks.sweep_outputs(demo, "direct_line", 1.5, "streamline", 40, 0.4)
+    _, _, msg, _ = callbacks.sweep_outputs(demo, "direct_line", 1.5, "streamline", 40, 0.4)
     assert "Fassihi" not in msg  # no data for d/a = 1.5
+
+
+def test_pattern_forecast_figure_is_the_engine_table(demo):
+    """Every number on the pattern-forecast figure comes from flood.pattern_forecast (engine), and the
+    dashed lines are the linear study's own table."""
+    from flood.pattern_forecast import pattern_forecast
+    from flood.scenario import build_case
+
+    *_, fig = callbacks.sweep_outputs(demo, "five_spot", 1.0, "correlation", 16, 0.4)
+    case = build_case(adapter.parse_inline(demo))
+    _, study = adapter.evaluate(demo)
+    sweep = adapter.run_sweep(demo, "five_spot", 1.0, "correlation", 16, 0.4)
+    table = pattern_forecast(case, sweep, economic_limit=True)
+    np.testing.assert_allclose(fig["data"][0]["y"], table["oil_rate_stb_d"].to_numpy())
+    np.testing.assert_allclose(fig["data"][1]["y"], 100 * table["water_cut"].to_numpy())
+    assert fig["data"][3]["y"][-1] == pytest.approx(100 * study.table["water_cut"].iloc[-1])

@@ -84,3 +84,21 @@ def test_one_tube_with_scenario_layers_is_the_layered_forecast(method):
     cut = np.interp(pf["pvi"], ref["pvi"], ref["water_cut"])
     # the cut jumps at each layer breakthrough: compare away from the jumps
     assert np.median(np.abs(pf["water_cut"] - cut)) < 1e-4
+
+
+def test_forecast_sweep_replaces_a_two_phase_run_by_the_piston_sweep_at_m_bt(case):
+    """A two-phase finite-volume sweep already holds the displacement the tubes add again, so the
+    tubes come from the piston-like run at M behind the front (Craig 1971, from memory)."""
+    from flood.displacement import breakthrough_mobility_ratio
+    from flood.numerical.sweep import numerical_sweep
+    from flood.pattern_forecast import forecast_sweep
+
+    piston = numerical_sweep("five_spot", mobility_ratio=2.0, cells=12, max_pvi=1.0, points=11)
+    assert forecast_sweep(case, piston) is piston
+    two_phase = numerical_sweep("five_spot", relperm=case.relperm, mu_w=case.mu_w, mu_o=case.mu_o,
+                                swi=case.swi, cells=12, max_pvi=1.0, points=11)
+    assert two_phase.pvi_basis == "total"
+    tubes = forecast_sweep(case, two_phase)
+    assert tubes.pvi_basis == "displaceable" and tubes.cells == 12 and tubes.stencil == two_phase.stencil
+    assert tubes.mobility_ratio == pytest.approx(
+        breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity))

@@ -526,6 +526,21 @@ def run_sweep(scenario: dict, pattern: str, d_over_a, method: str, cells, map_pv
     raise FloodInputError("method", method, "one of " + ", ".join(SWEEP_METHODS))
 
 
+def run_pattern_forecast(scenario: dict, sweep, progress=None):
+    """Pattern forecast of the scenario from an areal sweep (engine: ``forecast_sweep``,
+    ``pattern_forecast``), ending at the economic water cut; and the linear forecast beside it.
+
+    Returns
+    -------
+    (pandas.DataFrame, flood.study.StudyResult)
+    """
+    from flood.pattern_forecast import forecast_sweep, pattern_forecast
+
+    case = build_case(parse_inline(scenario))
+    table = pattern_forecast(case, forecast_sweep(case, sweep, progress), economic_limit=True)
+    return table, run_study(case, points=300)
+
+
 def sweep_correlation_beside(scenario: dict, sweep):
     """The Fassihi correlation at the same mobility ratio as ``sweep``, or None where it has no data.
 

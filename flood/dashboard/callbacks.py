@@ -314,11 +314,15 @@ def crosscheck_outputs(current, cells, entry_pressure, pore_index, gravity, prog
 
 
 def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=None):
-    """Pattern areal sweep -> (map figure, curve figure, message)."""
+    """Pattern areal sweep -> (map figure, curve figure, message, pattern forecast figure)."""
+    two_runs = method == "numerical"  # the forecast then needs a piston-like run too
+    first = progress if progress is None or not two_runs else (lambda f: progress(0.6 * f))
     try:
-        sweep = adapter.run_sweep(current, pattern, d_over_a, method, cells, map_pvi, progress)
+        sweep = adapter.run_sweep(current, pattern, d_over_a, method, cells, map_pvi, first)
+        second = None if progress is None or not two_runs else (lambda f: progress(0.6 + 0.4 * f))
+        forecast, linear = adapter.run_pattern_forecast(current, sweep, second)
     except FloodInputError as err:
-        return no_update, no_update, f"Not run: {err}"
+        return no_update, no_update, f"Not run: {err}", no_update
     m_label = {"correlation": "M behind the front", "numerical": "endpoint M"}.get(method, "M")
     grid = f", {sweep.cells} cells, {sweep.stencil}-point" if sweep.stencil else ""
     msg = (f"{pattern.replace('_', ' ')}, {method}{grid}, {m_label} = {sweep.mobility_ratio:.3g}: areal sweep at "
@@ -328,9 +332,14 @@ def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=N
     if corr is not None:
         msg += (f" Beside it, the Fassihi (1986) correlation at M = {corr.mobility_ratio:.3g}: "
                 f"{corr.areal_sweep_at_breakthrough:.3f} at breakthrough.")
+    last = forecast.iloc[-1]
+    msg += (f" Pattern forecast: recovery {last['recovery_factor']:.3f} at {last['days']:.0f} days "
+            f"(linear displacement {linear.summary['recovery_factor_at_economic_limit']:.3f} at "
+            f"{linear.summary['economic_limit_days']:.0f} days).")
     # the curves share the PVI basis only when neither is a two-phase run (total pore volumes)
     overlay = corr if corr is not None and sweep.method == "streamline" else None
-    return figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep, overlay), msg
+    return (figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep, overlay), msg,
+            figures.pattern_forecast_figure(forecast, linear))
 
 
 def crosscheck_job(set_progress, n_clicks, current, cells, entry_pressure, pore_index, gravity):
@@ -362,7 +371,7 @@ def register_background(app, manager) -> None:
     )(crosscheck_job)
     app.callback(
         Output(ids.SWEEP_FIGURE, "figure"), Output(ids.SWEEP_CURVE_FIGURE, "figure"),
-        Output(ids.SWEEP_MESSAGE, "children"),
+        Output(ids.SWEEP_MESSAGE, "children"), Output(ids.PATTERN_FORECAST_FIGURE, "figure"),
         Input(ids.SWEEP_RUN, "n_clicks"),
         State(ids.CURRENT_STORE, "data"), State(ids.SWEEP_PATTERN, "value"), State(ids.SWEEP_D_OVER_A, "value"),
         State(ids.SWEEP_METHOD, "value"), State(ids.SWEEP_CELLS, "value"), State(ids.SWEEP_MAP_PVI, "value"),

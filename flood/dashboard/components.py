@@ -155,6 +155,10 @@ def numerical_tab(patterns, sweep_methods: dict) -> html.Div:
         _run_row(ids.SWEEP_RUN, ids.SWEEP_CANCEL, ids.SWEEP_PROGRESS),
         html.Div(id=ids.SWEEP_MESSAGE, className="muted", role="status"),
         html.Div([graph(ids.SWEEP_FIGURE), graph(ids.SWEEP_CURVE_FIGURE)], className="figures"),
+        html.P("Pattern forecast: the sweep's stream tubes, each a Buckley-Leverett displacement (and the "
+               "scenario's layers, when it has them), to the economic water cut; the linear forecast is dashed.",
+               className="muted"),
+        html.Div([graph(ids.PATTERN_FORECAST_FIGURE)], className="figures"),
     ], className="numerical-tab")
 
 

@@ -142,6 +142,21 @@ def rate_cut_figure(result, pinned=()) -> dict:
     return fig
 
 
+def pattern_forecast_figure(table, linear) -> dict:
+    """Pattern forecast (stream tubes x displacement) beside the linear forecast: oil rate and water cut."""
+    fig = _figure("Pattern forecast: oil rate and water cut", _axis("Time since injection start [day]"),
+                  _axis("Oil rate [STB/d]", rangemode="tozero"),
+                  yaxis2=_second_axis("Water cut [%]", range=[0, 100], tickmode="linear", dtick=20))
+    days = table["days"].to_numpy()
+    t = linear.table
+    fig["data"] += [_line(days, table["oil_rate_stb_d"].to_numpy(), "oil rate, pattern"),
+                    _line(days, 100 * table["water_cut"].to_numpy(), "water cut, pattern", SECOND, 2.0, yaxis="y2"),
+                    _pinned_line(0, t["days"].to_numpy(), t["oil_rate_stb_d"].to_numpy(), "oil rate, linear"),
+                    _pinned_line(1, t["days"].to_numpy(), 100 * t["water_cut"].to_numpy(), "water cut, linear",
+                                 yaxis="y2")]
+    return fig
+
+
 def wor_figure(result, pinned=()) -> dict:
     """Surface water-oil ratio versus cumulative oil, log WOR axis (WOR > 0 only)."""
     fig = _figure("Water-oil ratio versus cumulative oil", _axis("Cumulative oil [STB]"),

@@ -133,7 +133,7 @@ def run_sweep(args) -> int:
         result = areal_sweep(args.pattern, mobility_ratio=m, **kwargs)
     summary = result.summary()
     summary["endpoint_mobility_ratio"] = m_end
-    two_phase = bool(args.scenario) and result.method == "numerical"
+    two_phase = result.pvi_basis == "total"
     summary["pvi_basis"] = "total pore volume" if two_phase else "displaceable pore volume"
     if args.scenario:
         summary["breakthrough_mobility_ratio"] = m
@@ -154,7 +154,9 @@ def run_sweep(args) -> int:
         sheets["correlation"] = corr.curve
     forecast = None
     if args.forecast:
-        forecast = _pattern_forecast_of(args, case, result, m)
+        from ..pattern_forecast import forecast_sweep, pattern_forecast
+
+        forecast = pattern_forecast(case, forecast_sweep(case, result), economic_limit=True)
         last = forecast.iloc[-1]
         summary["pattern_forecast_end_days"] = float(last["days"])
         summary["pattern_recovery_factor_at_forecast_end"] = float(last["recovery_factor"])
@@ -170,23 +172,6 @@ def run_sweep(args) -> int:
         summary["forecast_output"] = str(args.forecast)
     print_json(summary)
     return 0
-
-
-def _pattern_forecast_of(args, case, result, m_bt):
-    """Pattern forecast of the scenario: stream tubes of the piston-like sweep at M behind the front.
-
-    A two-phase finite-volume sweep already holds the Buckley-Leverett displacement, so it cannot
-    serve as the tubes (each tube runs its own displacement); the piston-like sweep at M_bt is
-    computed on the same grid instead.
-    """
-    from ..areal_sweep import areal_sweep
-    from ..pattern_forecast import pattern_forecast
-
-    tubes = result
-    if result.method == "numerical":
-        tubes = areal_sweep(args.pattern, mobility_ratio=min(max(m_bt, 0.05), 50.0), method="numerical",
-                            d_over_a=args.d_over_a, cells=args.cells, max_pvi=max(args.max_pvi, 2.0))
-    return pattern_forecast(case, tubes, economic_limit=True)
 
 
 def register(subparsers) -> None:

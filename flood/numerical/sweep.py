@@ -83,6 +83,9 @@ class ArealSweepResult:
         PVI -> swept indicator or saturation per cell, shape (ny, nx) (numerical method).
     stencil : int or None
         Connections per cell of the finite-volume grid (numerical method).
+    pvi_basis : str
+        "displaceable" (pore volumes of displaceable fluid: piston-like methods) or "total"
+        (total pore volumes: a two-phase finite-volume run).
     """
 
     pattern: str
@@ -98,6 +101,7 @@ class ArealSweepResult:
     tube_time: np.ndarray = field(default_factory=lambda: np.zeros(0))
     swept_maps: dict = field(default_factory=dict)
     stencil: int | None = None
+    pvi_basis: str = "displaceable"
 
     def summary(self) -> dict:
         """Headline figures as a flat dict."""
@@ -357,4 +361,5 @@ def numerical_sweep(pattern: str | PatternElement = "five_spot", *, mobility_rat
     maps = {float(v): run.report_saturations[int(np.argmin(np.abs(run.report_times * inj / pv - v)))]
             .reshape(grid.ny, grid.nx) for v in maps_at}
     return ArealSweepResult(element.pattern, element.d_over_a, m_report, "numerical", int(cells), w_bt, e_bt,
-                            curve, _time.perf_counter() - t0, swept_maps=maps, stencil=grid.stencil)
+                            curve, _time.perf_counter() - t0, swept_maps=maps, stencil=grid.stencil,
+                            pvi_basis="displaceable" if piston else "total")

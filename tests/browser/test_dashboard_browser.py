@@ -253,6 +253,13 @@ def test_pattern_sweep_map_in_background(session):
     assert progress and max(progress) == 100
     kind = session.page.evaluate("() => document.querySelector('#fig-sweep .js-plotly-plot')._fullData[0].type")
     assert kind == "heatmap"
+    assert "Pattern forecast: recovery" in msg
+    session.page.wait_for_function(
+        "() => { const g = document.querySelector('#fig-pattern-forecast .js-plotly-plot');"
+        " return g && g._fullData && g._fullData.length === 4; }", timeout=10_000)
+    names = session.page.evaluate(
+        "() => document.querySelector('#fig-pattern-forecast .js-plotly-plot')._fullData.map(t => t.name)")
+    assert names[0] == "oil rate, pattern" and names[2] == "oil rate, linear"
     assert session.errors == []
 
 
