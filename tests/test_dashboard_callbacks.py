@@ -1,6 +1,7 @@
 """Callback functions called directly (no browser): views, uploads, pins and downloads."""
 
 import base64
+import copy
 import io
 import json
 
@@ -196,3 +197,33 @@ def test_layer_table_upload(demo, values):
     assert list(book) == ["inputs", "summary", "forecast", "layers", "layer breakthroughs"]
     bad = callbacks.load_files(ids.UPLOAD_LAYERS, data_url("h,k\n1,2\n"), "bad.csv", demo, values)
     assert bad["base"] is no_update and "missing thickness_ft" in bad["msg_layers"]
+
+
+def test_restore_session_puts_back_a_valid_case_and_pins(demo):
+    changed = copy.deepcopy(demo)
+    changed["fluids"]["mu_o_cp"] = 7.5
+    pins = adapter.pin_case([], changed, "seven and a half")
+    out = callbacks.restore_session({"current": changed, "pins": pins})
+    assert out["restored"] is True
+    assert out["base"]["fluids"]["mu_o_cp"] == 7.5
+    assert out["boxes"]["mu_o_cp"] == 7.5
+    assert out["pins"] == pins and "seven and a half" in str(out["cases_table"])
+
+
+@pytest.mark.parametrize("saved", [None, "text", {"current": None, "pins": None}, {}])
+def test_restore_session_with_nothing_saved_changes_nothing(saved):
+    out = callbacks.restore_session(saved)
+    assert out["restored"] is True
+    assert all(out[k] is no_update for k in callbacks.RESTORE_KEYS if k != "restored")
+
+
+def test_restore_session_refuses_what_the_engine_refuses(demo):
+    """The saved copy lives in the browser: it is validated like an upload (and may not name files)."""
+    bad = copy.deepcopy(demo)
+    bad["fluids"]["mu_o_cp"] = -1.0
+    assert callbacks.restore_session({"current": bad, "pins": []})["base"] is no_update
+    with_file = copy.deepcopy(demo)
+    with_file["relperm"] = {"file": "/etc/passwd"}
+    assert callbacks.restore_session({"current": with_file, "pins": []})["base"] is no_update
+    too_many = adapter.pin_case([], demo, "a") * (adapter.MAX_PINS + 1)
+    assert callbacks.restore_session({"current": demo, "pins": too_many})["pins"] is no_update

@@ -174,6 +174,10 @@ def load_files(trigger: str, contents, filename, current: dict, values: dict) ->
             base = adapter.scenario_with_corey(current, values)
         elif trigger == ids.LAYER_VARIATION_BUTTON:
             base = adapter.scenario_with_layer_variation(current)
+        elif trigger == ids.DEMO_BUTTON:
+            base = adapter.demo_scenario()
+            out["boxes"] = adapter.controls_from_scenario(base)
+            out["method"] = out["boxes"]["layer_method"]
         else:
             return out
     except FloodInputError as err:
@@ -184,7 +188,8 @@ def load_files(trigger: str, contents, filename, current: dict, values: dict) ->
     return out
 
 
-def load_files_callback(scn, rp, lay, corey, layer_button, scn_name, rp_name, lay_name, current, *box_values):
+def load_files_callback(scn, rp, lay, corey, layer_button, demo_button, scn_name, rp_name, lay_name, current,
+                        *box_values):
     """Registered wrapper of :func:`load_files`."""
     trigger = ctx.triggered_id
     contents = {ids.UPLOAD_SCENARIO: (scn, scn_name), ids.UPLOAD_RELPERM: (rp, rp_name),
@@ -194,6 +199,55 @@ def load_files_callback(scn, rp, lay, corey, layer_button, scn_name, rp_name, la
     box_out = [no_update] * len(CONTROL_NAMES) if boxes is no_update else [boxes.get(n) for n in CONTROL_NAMES]
     msgs = [components.upload_message(out[k]) for k in ("msg_scenario", "msg_relperm", "msg_layers")]
     return (out["base"], *box_out, out["method"], *msgs)
+
+
+RESTORE_KEYS = ("restored", "base", "boxes", "method", "pins", "cases_table")
+
+
+def restore_session(saved) -> dict:
+    """The case and pins saved in this browser tab -> what to put back after a page reload.
+
+    ``saved`` is ``{"current": scenario dict, "pins": [...]}`` or None. The saved scenario goes
+    through the same validation as an upload (``adapter.parse_inline``); anything that does not
+    pass is dropped and the page stays on the demo.
+    """
+    out = {k: no_update for k in RESTORE_KEYS}
+    out["restored"] = True
+    if not isinstance(saved, dict):
+        return out
+    pins = saved.get("pins")
+    if isinstance(pins, list) and pins and len(pins) <= adapter.MAX_PINS:
+        try:
+            adapter.pinned_results(pins)
+        except (FloodInputError, KeyError, TypeError, ValueError):
+            pins = None
+        else:
+            out["pins"], out["cases_table"] = pins, components.cases_table(pins)
+    current = saved.get("current")
+    if isinstance(current, dict) and current != adapter.demo_scenario():
+        try:
+            base = adapter.scenario_to_dict(adapter.parse_inline(current))
+        except FloodInputError:
+            return out
+        out["base"] = base
+        out["boxes"] = adapter.controls_from_scenario(base)
+        out["method"] = out["boxes"]["layer_method"]
+    return out
+
+
+def restore_session_callback(gate, saved):
+    """Registered wrapper of :func:`restore_session`."""
+    out = restore_session(saved)
+    boxes = out["boxes"]
+    box_out = [no_update] * len(CONTROL_NAMES) if boxes is no_update else [boxes.get(n) for n in CONTROL_NAMES]
+    return (out["restored"], out["base"], *box_out, out["method"], out["pins"], out["cases_table"])
+
+
+#: Runs in the browser: pass the saved session's timestamp on once per page load.
+_GATE_JS = "function(ts, restored) { return restored ? window.dash_clientside.no_update : (ts || -1); }"
+#: Runs in the browser: copy the current case and the pins into the tab's session storage.
+_SAVE_JS = ("function(current, pins, restored) { if (!restored) { return window.dash_clientside.no_update; }"
+            " return {current: current, pins: pins || []}; }")
 
 
 def update_pins(trigger, current: dict, pins: list, label: str):
@@ -259,7 +313,7 @@ def register(app) -> None:
         Output(ids.UPLOAD_MESSAGE_LAYERS, "children"),
         Input(ids.UPLOAD_SCENARIO, "contents"), Input(ids.UPLOAD_RELPERM, "contents"),
         Input(ids.UPLOAD_LAYERS, "contents"), Input(ids.COREY_BUTTON, "n_clicks"),
-        Input(ids.LAYER_VARIATION_BUTTON, "n_clicks"),
+        Input(ids.LAYER_VARIATION_BUTTON, "n_clicks"), Input(ids.DEMO_BUTTON, "n_clicks"),
         State(ids.UPLOAD_SCENARIO, "filename"), State(ids.UPLOAD_RELPERM, "filename"),
         State(ids.UPLOAD_LAYERS, "filename"), State(ids.CURRENT_STORE, "data"),
         *[State(b, "value") for b in _BOXES],
@@ -272,6 +326,20 @@ def register(app) -> None:
         State(ids.CURRENT_STORE, "data"), State(ids.PINS_STORE, "data"), State(ids.PIN_LABEL, "value"),
         prevent_initial_call=True,
     )(update_pins_callback)
+
+    app.clientside_callback(_GATE_JS, Output(ids.RESTORE_GATE, "data"),
+                            Input(ids.SAVED_STORE, "modified_timestamp"), State(ids.RESTORED_STORE, "data"))
+    app.callback(
+        Output(ids.RESTORED_STORE, "data"), Output(ids.BASE_STORE, "data", allow_duplicate=True),
+        *[Output(b, "value", allow_duplicate=True) for b in _BOXES],
+        Output(ids.LAYER_METHOD, "value", allow_duplicate=True), Output(ids.PINS_STORE, "data", allow_duplicate=True),
+        Output(ids.CASES_TABLE, "children", allow_duplicate=True),
+        Input(ids.RESTORE_GATE, "data"), State(ids.SAVED_STORE, "data"),
+        prevent_initial_call=True,
+    )(restore_session_callback)
+    app.clientside_callback(_SAVE_JS, Output(ids.SAVED_STORE, "data"),
+                            Input(ids.CURRENT_STORE, "data"), Input(ids.PINS_STORE, "data"),
+                            State(ids.RESTORED_STORE, "data"), prevent_initial_call=True)
 
     app.callback(
         Output(ids.DOWNLOAD, "data"),

@@ -7,6 +7,10 @@ Pattern-matching ids are built by the small functions at the end.
 BASE_STORE = "base-scenario"          # scenario loaded from the demo or an upload (JSON dict)
 CURRENT_STORE = "current-scenario"    # last valid scenario built from the base + the controls
 PINS_STORE = "pinned-cases"           # list of pinned cases: {"key", "label", "scenario", "summary"}
+SAVED_STORE = "saved-session"         # sessionStorage copy {"current", "pins"}: survives a page reload
+RESTORE_GATE = "restore-gate"         # set once per page load by a clientside gate
+RESTORED_STORE = "restored"           # True once the saved session has been read back on this load
+DEMO_BUTTON = "back-to-demo"          # start again from the demo scenario
 
 # Inputs
 PROFILE_PVI = "profile-pvi"           # slider: PVI of the saturation profile

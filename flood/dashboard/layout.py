@@ -89,6 +89,10 @@ def build_layout(numerical_patterns=()) -> html.Div:
             ], className="uploads"),
             html.P(components.upload_cap_text() + " Files are checked exactly as by the command line; a rejected "
                    "file leaves the current case as it was.", className="muted"),
+            html.Div([html.Button("Start again from the demo scenario", id=ids.DEMO_BUTTON, n_clicks=0,
+                                  className="small-button"),
+                      html.Span("The current case and pinned cases are kept over a page reload in this "
+                                "browser tab.", className="muted")], className="row"),
             html.Div([html.Button("Forecast CSV", id=ids.DOWNLOAD_CSV, n_clicks=0, className="button"),
                       html.Button("Workbook XLSX", id=ids.DOWNLOAD_XLSX, n_clicks=0, className="button"),
                       html.Button("Scenario JSON", id=ids.DOWNLOAD_JSON, n_clicks=0, className="button")],
@@ -99,5 +103,8 @@ def build_layout(numerical_patterns=()) -> html.Div:
     header = html.Header([html.H1("flood"), html.Span("waterflood screening forecasts", className="tagline"),
                           html.Span(demo["name"], className="case-name", id="case-name")], className="header")
     stores = [dcc.Store(id=ids.BASE_STORE, data=demo), dcc.Store(id=ids.CURRENT_STORE, data=demo),
-              dcc.Store(id=ids.PINS_STORE, data=[])]
+              dcc.Store(id=ids.PINS_STORE, data=[]),
+              # per browser tab, kept over a reload, cleared when the tab closes
+              dcc.Store(id=ids.SAVED_STORE, storage_type="session"),
+              dcc.Store(id=ids.RESTORE_GATE), dcc.Store(id=ids.RESTORED_STORE, data=False)]
     return html.Div([*stores, header, html.Div([sidebar, main], className="page")], className="app")

@@ -270,3 +270,33 @@ def test_background_job_under_gunicorn(open_session, gunicorn_url):
     _, msg = _run_background(s, "numerical-run", "numerical-progress", "numerical-message")
     assert "120 cells" in msg
     assert s.errors == []
+
+
+def test_case_and_pins_survive_a_reload_and_demo_button_resets(session):
+    """A reload in the same tab keeps the current case and the pinned cases (sessionStorage); the
+    cards after the reload are the engine's for the restored case; the demo button starts again."""
+    page = session.page
+    demo_bt = session.card("breakthrough_days")
+    page.fill("#pin-label", "kept")
+    page.click("#pin-case")
+    page.wait_for_selector("table.cases td:has-text('kept')", timeout=10_000)
+    _press_mobility(session, "PageUp")
+    session.wait_card_change("breakthrough_days", demo_bt)
+    m = page.input_value("#mobility_ratio-box")
+    changed_bt = session.card("breakthrough_days")
+    page.wait_for_function(
+        "() => { const s = JSON.parse(sessionStorage.getItem('saved-session') || 'null');"
+        " return s && s.pins.length === 1; }", timeout=10_000)
+    page.reload()
+    page.wait_for_selector("table.cases td:has-text('kept')", timeout=15_000)
+    page.wait_for_function(
+        "(m) => document.querySelector('#mobility_ratio-box').value === m", arg=m, timeout=15_000)
+    page.wait_for_function(
+        "(bt) => document.querySelector('#card-breakthrough_days').innerText === bt", arg=changed_bt, timeout=15_000)
+    page.wait_for_function(
+        "() => document.querySelector('#fig-rate-cut .js-plotly-plot')._fullData.some(t => t.name.includes('kept'))",
+        timeout=15_000)
+    page.click("#back-to-demo")
+    session.wait_card_change("breakthrough_days", changed_bt)
+    assert session.card("breakthrough_days") == demo_bt
+    assert session.errors == []
