@@ -5,6 +5,8 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 import pytest
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 
 from flood.errors import FloodInputError
 from flood.forecast import forecast_table
@@ -102,3 +104,25 @@ def test_forecast_sweep_replaces_a_two_phase_run_by_the_piston_sweep_at_m_bt(cas
     assert tubes.pvi_basis == "displaceable" and tubes.cells == 12 and tubes.stencil == two_phase.stencil
     assert tubes.mobility_ratio == pytest.approx(
         breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity))
+
+
+@settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(m=st.floats(0.1, 10.0), mu_o=st.floats(0.3, 30.0), nw=st.floats(1.0, 4.0))
+def test_pattern_forecast_material_balance_property(demo_dict, m, mu_o, nw):
+    """Any correlation sweep and any Corey case: recovery never exceeds the movable oil
+    (1 - Swi - Sor)/(1 - Swi), never falls, fw stays in [0, 1], and the oil produced equals the
+    injection minus the water produced (incompressible material balance, common practice)."""
+    from flood.areal_sweep import correlation_sweep
+
+    d = dict(demo_dict)
+    d["fluids"] = dict(d["fluids"], mu_o_cp=mu_o)
+    d["relperm"] = dict(d["relperm"], nw=nw)
+    case = build_case(parse_scenario(d))
+    pf = pattern_forecast(case, correlation_sweep("five_spot", mobility_ratio=m), points=120, end_pvi=4.0)
+    rf, fw, pvi = pf["recovery_factor"].to_numpy(), pf["fw_reservoir"].to_numpy(), pf["pvi"].to_numpy()
+    assert np.all(np.diff(rf) >= -1e-12)
+    assert rf[-1] <= (1 - case.swi - case.sor) / (1 - case.swi) + 1e-9
+    assert np.all((fw >= -1e-12) & (fw <= 1 + 1e-12))
+    # d(oil in PV)/dW = 1 - fw: integrate the water cut and compare with the recovery column
+    oil_pv = np.concatenate(([0.0], np.cumsum(np.diff(pvi) * 0.5 * ((1 - fw[1:]) + (1 - fw[:-1])))))
+    assert np.allclose(oil_pv / (1 - case.swi), rf, atol=0.02)
