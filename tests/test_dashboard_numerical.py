@@ -103,3 +103,14 @@ def test_pattern_forecast_figure_is_the_engine_table(demo):
     np.testing.assert_allclose(fig["data"][0]["y"], table["oil_rate_stb_d"].to_numpy())
     np.testing.assert_allclose(fig["data"][1]["y"], 100 * table["water_cut"].to_numpy())
     assert fig["data"][3]["y"][-1] == pytest.approx(100 * study.table["water_cut"].iloc[-1])
+
+
+def test_streamline_sweep_has_a_swept_map(demo):
+    """The streamline view draws the swept cells at the chosen PVI (engine: streamline_sweep map_pvi)."""
+    from flood.numerical.sweep import streamline_sweep
+
+    fmap, *_ = callbacks.sweep_outputs(demo, "five_spot", 1.0, "streamline", 16, 0.5)
+    go.Figure(fmap)
+    assert fmap["data"][0]["type"] == "heatmap" and "streamlines" in fmap["layout"]["title"]["text"]
+    expected = streamline_sweep("five_spot", max_pvi=3.0, map_pvi=(0.5,)).swept_maps[0.5]
+    np.testing.assert_array_equal(np.asarray(fmap["data"][0]["z"]), expected)

@@ -106,3 +106,14 @@ def test_nine_point_linear_fields_property(nx, ny, dx, aspect, gx, gy, k):
     interior = (i > 0) & (i < nx - 1) & (j > 0) & (j < ny - 1)
     scale = k * (abs(gx) + abs(gy)) * max(g.dx, g.dy) + 1e-300
     assert np.max(np.abs(net[interior])) <= 1e-11 * scale
+
+
+def test_streamlines_refuse_a_nine_point_grid():
+    """Pollock tracing needs the face fluxes alone; a nine-point flux list gets a clear error."""
+    from flood.numerical.streamlines import trace_streamlines
+
+    g = CartesianGrid(6, 6, 1.0, 1.0, stencil=9)
+    q = np.zeros(g.cells)
+    q[0], q[-1] = 1.0, -1.0
+    with pytest.raises(FloodInputError, match=r"grid.stencil = 9: 5 \(streamlines trace face fluxes only\)"):
+        trace_streamlines(g, np.zeros(g.transmissibility.size), q, 20)

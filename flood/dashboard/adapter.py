@@ -522,7 +522,10 @@ def run_sweep(scenario: dict, pattern: str, d_over_a, method: str, cells, map_pv
         m = breakthrough_mobility_ratio(case.relperm, case.mu_w, case.mu_o, case.swi, case.gravity)
         return areal_sweep(pattern, mobility_ratio=m, method="correlation", d_over_a=d_over_a, max_pvi=max_pvi)
     if method == "streamline":
-        return areal_sweep(pattern, mobility_ratio=1.0, method="streamline", d_over_a=d_over_a, max_pvi=max_pvi)
+        from flood.numerical.sweep import streamline_sweep
+
+        map_pvi = _number("map PVI", map_pvi, 0.01, max_pvi)
+        return streamline_sweep(pattern, d_over_a=d_over_a, max_pvi=max_pvi, map_pvi=(map_pvi,))
     raise FloodInputError("method", method, "one of " + ", ".join(SWEEP_METHODS))
 
 

@@ -229,19 +229,23 @@ def crosscheck_curve_figure(check) -> dict:
 
 
 def sweep_map_figure(sweep) -> dict:
-    """Water saturation over the pattern's symmetry element at the kept PVI (finite-volume method)."""
+    """Water saturation (finite volumes) or swept cells (streamlines) over the symmetry element at the kept PVI."""
     if not sweep.swept_maps:
-        fig = _figure("Swept-area map (finite-volume method only)", _axis("x [-]"), _axis("y [-]"))
+        fig = _figure("Swept-area map (streamline and finite-volume methods)", _axis("x [-]"), _axis("y [-]"))
         return fig
     pvi, field = next(iter(sweep.swept_maps.items()))
     field = np.asarray(field)
-    fig = _figure(f"Water saturation over the symmetry element at {pvi:.2f} PV injected",
+    if sweep.method == "streamline":
+        title, scale = f"Swept area (streamlines, M = 1) at {pvi:.2f} PV injected", "swept [1 = yes]"
+    else:
+        title, scale = f"Water saturation over the symmetry element at {pvi:.2f} PV injected", "Sw [fraction]"
+    fig = _figure(title,
                   _axis("x / element length [-]", range=[0, 1], showgrid=False),
                   _axis("y / element width [-]", range=[0, 1], showgrid=False, scaleanchor="x"),
                   hovermode="closest")
     ny, nx = field.shape
     fig["data"].append({"type": "heatmap", "z": field, "x": (np.arange(nx) + 0.5) / nx, "y": (np.arange(ny) + 0.5) / ny,
-                        "colorscale": "Cividis", "colorbar": {"title": {"text": "Sw [fraction]"}}, "zsmooth": False})
+                        "colorscale": "Cividis", "colorbar": {"title": {"text": scale}}, "zsmooth": False})
     return fig
 
 

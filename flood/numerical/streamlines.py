@@ -22,7 +22,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
+from scipy import ndimage
 
+from ..errors import FloodInputError
 from .grid import CartesianGrid
 
 _TINY = 1e-14
@@ -41,12 +43,17 @@ class StreamlineSet:
         Rate carried by each streamline [volume/time].
     start_x, start_y : numpy.ndarray
         Launch points [length].
+    cell_arrival : numpy.ndarray or None
+        Per cell, the earliest time a streamline reaches the middle of its path through the cell
+        (``record_cells=True``); cells no streamline crossed take the value of the nearest crossed
+        cell. None when not recorded [time unit].
     """
 
     time_of_flight: np.ndarray
     flux: np.ndarray
     start_x: np.ndarray
     start_y: np.ndarray
+    cell_arrival: np.ndarray | None = None
 
 
 def face_fluxes(grid: CartesianGrid, flux: np.ndarray):
@@ -80,7 +87,8 @@ def face_fluxes(grid: CartesianGrid, flux: np.ndarray):
 
 
 def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndarray,
-                      lines: int = 2000, max_cells: int | None = None) -> StreamlineSet:
+                      lines: int = 2000, max_cells: int | None = None,
+                      record_cells: bool = False) -> StreamlineSet:
     """Trace streamlines from the injector cells to the producer cells.
 
     Parameters
@@ -94,6 +102,9 @@ def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndar
         About how many streamlines to launch [-].
     max_cells : int, optional
         Safety limit on cells crossed per streamline (default 20 (nx + ny)).
+    record_cells : bool
+        Also record each cell's front arrival time (``cell_arrival``): the swept region at time
+        t is the set of cells with arrival <= t (exact for a piston front at unit mobility ratio).
 
     Returns
     -------
@@ -159,6 +170,9 @@ def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndar
     line_flux = np.concatenate(fl)
     tof = np.concatenate(t0)
     sx, sy = x.copy(), y.copy()
+    arrival = np.full(nx * ny, np.inf)
+    if record_cells:
+        arrival[(q > 0).ravel()] = 0.0
     active = np.ones(x.size, dtype=bool)
     done = np.zeros(x.size, dtype=bool)
     limit = max_cells or 20 * (nx + ny)
@@ -173,6 +187,8 @@ def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndar
             k = idx[sink]
             inflow = (np.maximum(west, 0) + np.maximum(-east, 0) + np.maximum(south, 0)
                       + np.maximum(-north, 0))[j[k], i[k]]
+            if record_cells:
+                np.minimum.at(arrival, j[k] * nx + i[k], tof[k])
             tof[k] += pv[j[k], i[k]] / np.maximum(inflow, _TINY)
             done[k] = True
             active[k] = False
@@ -196,6 +212,8 @@ def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndar
         idx, dt = idx[go], dt[go]
         jj, ii, a_x, a_y, ux0, uy0 = jj[go], ii[go], a_x[go], a_y[go], ux0[go], uy0[go]
         xw, ys_ = xw[go], ys_[go]
+        if record_cells:
+            np.minimum.at(arrival, jj * nx + ii, tof[idx] + 0.5 * dt)
         tof[idx] += dt
         xnew = _advance(x[idx], xw, ux0, uw[jj, ii], a_x, dt)
         ynew = _advance(y[idx], ys_, uy0, us[jj, ii], a_y, dt)
@@ -217,7 +235,16 @@ def trace_streamlines(grid: CartesianGrid, flux: np.ndarray, well_rates: np.ndar
             i[idx[out]] = np.clip(i[idx[out]], 0, nx - 1)
             j[idx[out]] = np.clip(j[idx[out]], 0, ny - 1)
     tof[active] = np.inf
-    return StreamlineSet(time_of_flight=tof, flux=line_flux, start_x=sx, start_y=sy)
+    cell_arrival = None
+    if record_cells:
+        missed = ~np.isfinite(arrival).reshape(ny, nx)
+        if missed.all():
+            cell_arrival = arrival
+        else:  # nearest crossed cell (scipy.ndimage Euclidean distance transform)
+            nearest = ndimage.distance_transform_edt(missed, sampling=(dy, dx), return_distances=False,
+                                                     return_indices=True)
+            cell_arrival = arrival.reshape(ny, nx)[nearest[0], nearest[1]].ravel()
+    return StreamlineSet(time_of_flight=tof, flux=line_flux, start_x=sx, start_y=sy, cell_arrival=cell_arrival)
 
 
 def _axis_time(u0, ulo, uhi, a, offset, size):

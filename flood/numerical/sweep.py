@@ -130,7 +130,7 @@ def single_phase_flux(grid, well_rates):
 
 def streamline_sweep(pattern: str | PatternElement = "five_spot", *, d_over_a: float = 1.0,
                      cells: int = DEFAULT_CELLS_STREAMLINE, lines: int = DEFAULT_LINES,
-                     max_pvi: float = 3.0, points: int = 301) -> ArealSweepResult:
+                     max_pvi: float = 3.0, points: int = 301, map_pvi=()) -> ArealSweepResult:
     """Areal sweep at unit mobility ratio by streamlines and time of flight.
 
     Parameters
@@ -147,6 +147,9 @@ def streamline_sweep(pattern: str | PatternElement = "five_spot", *, d_over_a: f
         Last PVI of the curve [displaceable PV].
     points : int
         Points of the curve (the breakthrough point is added) [-].
+    map_pvi : sequence of float
+        PVIs at which to keep the swept-area map (``swept_maps``: 1 where the front has passed
+        the cell's middle, from each cell's earliest streamline arrival) [displaceable PV].
 
     Returns
     -------
@@ -172,7 +175,8 @@ def streamline_sweep(pattern: str | PatternElement = "five_spot", *, d_over_a: f
         raise FloodInputError("lines", lines, "a whole number 10 <= lines <= 200000")
     grid = element.grid(cells)
     q = element.well_rates(grid)
-    sl = trace_streamlines(grid, single_phase_flux(grid, q), q, lines)
+    maps_at = sorted(set(float(v) for v in map_pvi if 0 < v <= max_pvi))
+    sl = trace_streamlines(grid, single_phase_flux(grid, q), q, lines, record_cells=bool(maps_at))
     pv = float(grid.pore_volume.sum())
     injection = float(q[q > 0].sum())
     ok = np.isfinite(sl.time_of_flight)
@@ -187,8 +191,13 @@ def streamline_sweep(pattern: str | PatternElement = "five_spot", *, d_over_a: f
     k = np.searchsorted(tau, pvi, side="right")  # tubes broken through by W
     sweep = np.minimum(cum_wt[k] + pvi * (1.0 - cum_w[k]), 1.0)
     curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": cum_w[k]})
+    maps = {}
+    if maps_at:
+        arrival = sl.cell_arrival * injection / pv
+        maps = {v: (arrival <= v).astype(float).reshape(grid.ny, grid.nx) for v in maps_at}
     return ArealSweepResult(element.pattern, element.d_over_a, 1.0, "streamline", int(cells), w_bt,
-                            min(w_bt, 1.0), curve, _time.perf_counter() - t0, tube_flux=w, tube_time=tau)
+                            min(w_bt, 1.0), curve, _time.perf_counter() - t0, tube_flux=w, tube_time=tau,
+                            swept_maps=maps)
 
 
 @dataclass(frozen=True)
