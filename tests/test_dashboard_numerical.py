@@ -114,3 +114,16 @@ def test_streamline_sweep_has_a_swept_map(demo):
     assert fmap["data"][0]["type"] == "heatmap" and "streamlines" in fmap["layout"]["title"]["text"]
     expected = streamline_sweep("five_spot", max_pvi=3.0, map_pvi=(0.5,)).swept_maps[0.5]
     np.testing.assert_array_equal(np.asarray(fmap["data"][0]["z"]), expected)
+
+
+def test_sweep_stands_when_the_pattern_forecast_cannot_be_made(demo):
+    """Initial free gas: the sweep is still shown; the message says why the forecast is missing
+    (the engine's own refusal: gas fill-up is not modelled in the stream tubes)."""
+    import copy
+
+    gas = copy.deepcopy(demo)
+    gas["saturations"]["sgi"] = 0.05
+    fmap, curve, msg, pattern = callbacks.sweep_outputs(gas, "five_spot", 1.0, "streamline", 16, 0.4)
+    assert fmap is not no_update and curve is not no_update and pattern is no_update
+    assert "areal sweep at breakthrough" in msg
+    assert "Pattern forecast not made: saturations.sgi = 0.05" in msg

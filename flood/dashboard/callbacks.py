@@ -387,10 +387,13 @@ def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=N
     first = progress if progress is None or not two_runs else (lambda f: progress(0.6 * f))
     try:
         sweep = adapter.run_sweep(current, pattern, d_over_a, method, cells, map_pvi, first)
-        second = None if progress is None or not two_runs else (lambda f: progress(0.6 + 0.4 * f))
-        forecast, linear = adapter.run_pattern_forecast(current, sweep, second)
     except FloodInputError as err:
         return no_update, no_update, f"Not run: {err}", no_update
+    second = None if progress is None or not two_runs else (lambda f: progress(0.6 + 0.4 * f))
+    try:
+        forecast, linear = adapter.run_pattern_forecast(current, sweep, second)
+    except FloodInputError as err:  # e.g. initial gas: the sweep stands, the forecast cannot be made
+        forecast, linear, forecast_error = None, None, str(err)
     m_label = {"correlation": "M behind the front", "numerical": "endpoint M"}.get(method, "M")
     grid = f", {sweep.cells} cells, {sweep.stencil}-point" if sweep.stencil else ""
     msg = (f"{pattern.replace('_', ' ')}, {method}{grid}, {m_label} = {sweep.mobility_ratio:.3g}: areal sweep at "
@@ -400,14 +403,17 @@ def sweep_outputs(current, pattern, d_over_a, method, cells, map_pvi, progress=N
     if corr is not None:
         msg += (f" Beside it, the Fassihi (1986) correlation at M = {corr.mobility_ratio:.3g}: "
                 f"{corr.areal_sweep_at_breakthrough:.3f} at breakthrough.")
-    last = forecast.iloc[-1]
-    msg += (f" Pattern forecast: recovery {last['recovery_factor']:.3f} at {last['days']:.0f} days "
-            f"(linear displacement {linear.summary['recovery_factor_at_economic_limit']:.3f} at "
-            f"{linear.summary['economic_limit_days']:.0f} days).")
+    if forecast is None:
+        msg += f" Pattern forecast not made: {forecast_error}"
+    else:
+        last = forecast.iloc[-1]
+        msg += (f" Pattern forecast: recovery {last['recovery_factor']:.3f} at {last['days']:.0f} days "
+                f"(linear displacement {linear.summary['recovery_factor_at_economic_limit']:.3f} at "
+                f"{linear.summary['economic_limit_days']:.0f} days).")
     # the curves share the PVI basis only when neither is a two-phase run (total pore volumes)
     overlay = corr if corr is not None and sweep.method == "streamline" else None
-    return (figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep, overlay), msg,
-            figures.pattern_forecast_figure(forecast, linear))
+    pattern_fig = no_update if forecast is None else figures.pattern_forecast_figure(forecast, linear)
+    return figures.sweep_map_figure(sweep), figures.sweep_curve_figure(sweep, overlay), msg, pattern_fig
 
 
 def crosscheck_job(set_progress, n_clicks, current, cells, entry_pressure, pore_index, gravity):
