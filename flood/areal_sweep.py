@@ -140,7 +140,8 @@ def correlation_sweep(pattern: str = "five_spot", *, mobility_ratio: float = 1.0
 
 def areal_sweep(pattern: str = "five_spot", *, mobility_ratio: float | None = 1.0, method: str = "auto",
                 d_over_a: float = 1.0, cells: int | None = None, relperm=None, mu_w: float = 1.0,
-                mu_o: float = 1.0, swi: float | None = None, max_pvi: float = 3.0, progress=None):
+                mu_o: float = 1.0, swi: float | None = None, max_pvi: float = 3.0, progress=None,
+                map_pvi=()):
     """Areal sweep of a repeated pattern by the chosen method.
 
     Parameters
@@ -162,6 +163,8 @@ def areal_sweep(pattern: str = "five_spot", *, mobility_ratio: float | None = 1.
         Last PVI of the curve [PV].
     progress : callable, optional
         ``progress(fraction)`` (numerical method).
+    map_pvi : sequence of float
+        PVIs at which to keep the swept map (streamline and numerical methods).
 
     Returns
     -------
@@ -188,7 +191,7 @@ def areal_sweep(pattern: str = "five_spot", *, mobility_ratio: float | None = 1.
             raise FloodInputError("mobility_ratio", mobility_ratio, "1 for the streamline method",
                                   "streamlines of the steady field hold only at unit mobility ratio")
         return fv.streamline_sweep(pattern, d_over_a=d_over_a, cells=cells or fv.DEFAULT_CELLS_STREAMLINE,
-                                   max_pvi=max_pvi)
+                                   max_pvi=max_pvi, map_pvi=map_pvi)
     if method == "correlation":
         if pattern in ("direct_line", "staggered_line") and d_over_a != 1.0:
             raise FloodInputError("d_over_a", d_over_a, "1 for the correlation",
@@ -196,4 +199,4 @@ def areal_sweep(pattern: str = "five_spot", *, mobility_ratio: float | None = 1.
         return correlation_sweep(pattern, mobility_ratio=mobility_ratio, max_pvi=max_pvi)
     return fv.numerical_sweep(pattern, mobility_ratio=mobility_ratio, d_over_a=d_over_a,
                               cells=cells or fv.DEFAULT_CELLS_NUMERICAL, relperm=relperm, mu_w=mu_w,
-                              mu_o=mu_o, swi=swi, max_pvi=max_pvi, progress=progress)
+                              mu_o=mu_o, swi=swi, max_pvi=max_pvi, progress=progress, map_pvi=map_pvi)

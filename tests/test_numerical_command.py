@@ -102,3 +102,25 @@ def test_sweep_forecast_needs_a_scenario(tmp_path, capsys):
     err = capsys.readouterr().err
     assert "--forecast" in err and "SCENARIO.json" in err and len(err.strip().splitlines()) == 1
     assert not path.exists()
+
+
+def test_sweep_map_in_workbook(tmp_path, capsys):
+    """--map-pvi keeps the swept map; its swept share is the engine's E_A(W) within the map's cell
+    resolution (the stream-tube read-out of the same time-of-flight field)."""
+    path = tmp_path / "map.xlsx"
+    assert main(["sweep", "--pattern", "five_spot", "--map-pvi", "0.5", "-o", str(path)]) == 0
+    out = json.loads(capsys.readouterr().out)
+    sheets = pd.read_excel(path, sheet_name=None)
+    field = sheets["swept_map"].drop(columns="y").to_numpy()
+    assert field.shape == (100, 100) and set(np.unique(field)) <= {0.0, 1.0}
+    assert out["swept_share_on_map"] == pytest.approx(field.mean())
+    assert out["swept_share_on_map"] == pytest.approx(0.5, abs=0.02)  # E_A = W before breakthrough
+
+
+@pytest.mark.parametrize("argv, expected", [
+    (["--map-pvi", "5"], "--map-pvi = 5.0: 0 < PVI <= --max-pvi (3)"),
+    (["--map-pvi", "0.5", "--method", "correlation"], "--map-pvi = 0.5: a streamline or numerical method"),
+])
+def test_sweep_map_errors(capsys, argv, expected):
+    assert main(["sweep", "--pattern", "five_spot", *argv]) == 2
+    assert expected in capsys.readouterr().err

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import sys
 
+import numpy as np
 import pandas as pd
 
 from ..errors import FloodInputError
@@ -111,6 +112,13 @@ def run_sweep(args) -> int:
     if args.scenario and args.mobility_ratio is not None:
         raise FloodInputError("--mobility-ratio", args.mobility_ratio, "either a mobility ratio or a scenario, not both")
     kwargs = dict(method=args.method, d_over_a=args.d_over_a, cells=args.cells, max_pvi=args.max_pvi)
+    if args.map_pvi is not None:
+        if not (np.isfinite(args.map_pvi) and 0 < args.map_pvi <= args.max_pvi):
+            raise FloodInputError("--map-pvi", args.map_pvi, f"0 < PVI <= --max-pvi ({args.max_pvi:g})")
+        if args.method == "correlation":
+            raise FloodInputError("--map-pvi", args.map_pvi, "a streamline or numerical method",
+                                  "the correlation has no map")
+        kwargs["map_pvi"] = (float(args.map_pvi),)
     if args.scenario:
         from ..displacement import breakthrough_mobility_ratio
         from ..forecast import endpoint_mobility_ratio
@@ -152,6 +160,15 @@ def run_sweep(args) -> int:
             summary["correlation_breakthrough_pvi_total"] = corr.areal_sweep_at_breakthrough * (
                 sol.average_saturation_at_breakthrough - sol.swi)
         sheets["correlation"] = corr.curve
+    for w, field in result.swept_maps.items():
+        # rows bottom (y = 0) to top, columns x = 0 to the element's length; cell-centre coordinates
+        ny, nx = field.shape
+        frame = pd.DataFrame(field, columns=[f"x={(i + 0.5) / nx:.4g}" for i in range(nx)])
+        frame.insert(0, "y", (np.arange(ny) + 0.5) / ny)
+        sheets["swept_map"] = frame
+        summary["map_pvi"] = w
+        if result.method == "streamline":
+            summary["swept_share_on_map"] = float(field.mean())
     forecast = None
     if args.forecast:
         from ..pattern_forecast import forecast_sweep, pattern_forecast
@@ -200,6 +217,8 @@ def register(subparsers) -> None:
     s.add_argument("--cells", type=int, default=None, help="cells along the longer side of the element")
     s.add_argument("--max-pvi", type=float, default=3.0, help="last PVI of the curve (default 3)")
     s.add_argument("-o", "--output", help="write the curve versus PVI: .csv, .json or .xlsx")
+    s.add_argument("--map-pvi", type=float, default=None,
+                   help="keep the swept map (streamlines: 1 = swept; numerical: Sw) at this PVI in -o .json/.xlsx")
     s.add_argument("--forecast", metavar="FILE",
                    help="with a scenario: write the pattern forecast versus time (.csv, .json or .xlsx)")
     s.set_defaults(handler=run_sweep)
