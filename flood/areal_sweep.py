@@ -132,7 +132,8 @@ def correlation_sweep(pattern: str = "five_spot", *, mobility_ratio: float = 1.0
     after = pvi >= e_bt
     sweep = np.where(after, np.interp(pvi, w, e), pvi)
     fd = np.where(after, np.interp(pvi, w, f), 0.0)
-    curve = pd.DataFrame({"pvi": pvi, "areal_sweep": np.minimum(sweep, 1.0), "fd": fd})
+    sweep = np.minimum(sweep, 1.0)
+    curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": fd, "water_cut": fd, "recovery": sweep})
     d_a = 1.0 if pattern != "five_spot" else None
     return ArealSweepResult(pattern, d_a, float(mobility_ratio), "correlation", None, e_bt, e_bt, curve,
                             _time.perf_counter() - t0)

@@ -34,7 +34,7 @@ def test_sweep_writes_curve(tmp_path, capsys, ext):
     out = json.loads(capsys.readouterr().out)
     assert "areal_sweep_at_breakthrough" in out and "breakthrough_pvi" in out
     if ext == ".csv":
-        assert list(pd.read_csv(path).columns) == ["pvi", "areal_sweep", "fd"]
+        assert list(pd.read_csv(path).columns) == ["pvi", "areal_sweep", "fd", "water_cut", "recovery"]
     elif ext == ".json":
         assert "curve" in json.loads(path.read_text())
     else:

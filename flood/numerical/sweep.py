@@ -73,7 +73,10 @@ class ArealSweepResult:
     areal_sweep_at_breakthrough : float
         Swept fraction of the pattern area at breakthrough [fraction].
     curve : pandas.DataFrame
-        Columns ``pvi``, ``areal_sweep`` and ``fd`` (fraction of injected fluid in the production).
+        Columns ``pvi``, ``areal_sweep``, ``fd`` (fraction of injected fluid in the production,
+        normalised over the front's jump for a two-phase run), ``water_cut`` (reservoir water cut
+        of the production) and ``recovery`` (oil produced over the displaceable oil for the
+        piston-like methods, over the oil in place for a two-phase run) [fraction each].
     seconds : float
         Wall-clock time [s].
     tube_flux, tube_time : numpy.ndarray
@@ -190,7 +193,8 @@ def streamline_sweep(pattern: str | PatternElement = "five_spot", *, d_over_a: f
     cum_wt = np.concatenate(([0.0], np.cumsum(w * tau)))
     k = np.searchsorted(tau, pvi, side="right")  # tubes broken through by W
     sweep = np.minimum(cum_wt[k] + pvi * (1.0 - cum_w[k]), 1.0)
-    curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": cum_w[k]})
+    curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": cum_w[k], "water_cut": cum_w[k],
+                          "recovery": sweep})
     maps = {}
     if maps_at:
         arrival = sl.cell_arrival * injection / pv
@@ -353,10 +357,11 @@ def numerical_sweep(pattern: str | PatternElement = "five_spot", *, mobility_rat
     rep_pvi = run.report_times * inj / pv
     sweep = np.interp(pvi, np.concatenate(([0.0], rep_pvi)), np.concatenate(([0.0], swept)))
     t_pvi = run.time * inj / pv
-    fd = np.interp(pvi, t_pvi, run.producer_fw)
-    if not piston:
-        fd = np.clip((fd - f0) / max(1.0 - f0, 1e-12), 0.0, 1.0)
-    curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": fd})
+    cut = np.interp(pvi, t_pvi, run.producer_fw)
+    fd = cut if piston else np.clip((cut - f0) / max(1.0 - f0, 1e-12), 0.0, 1.0)
+    # oil recovered: of the displaceable oil (piston), of the oil in place (two-phase)
+    recovery = np.interp(pvi, t_pvi, run.oil_produced) / (pv * (1.0 - s0))
+    curve = pd.DataFrame({"pvi": pvi, "areal_sweep": sweep, "fd": fd, "water_cut": cut, "recovery": recovery})
     if "t" in at_bt:
         # the crossing happened during the step ending at at_bt["t"]; interpolate the PVI
         k = int(np.searchsorted(run.time, at_bt["t"]))
