@@ -80,11 +80,13 @@ def test_mass_balance_is_exact(demo_case):
     assert run.oil_produced[-1] == pytest.approx(water_gain, rel=1e-10)
 
 
-def test_water_wet_capillarity_smears_front_and_advances_breakthrough(demo_case):
+@pytest.mark.parametrize("stepping", ["explicit", "implicit"])
+def test_water_wet_capillarity_smears_front_and_advances_breakthrough(demo_case, stepping):
     """Water-wet Pc (Brooks-Corey) draws water ahead of the front by imbibition: a wider front and
     earlier first water at the outlet than without it (common practice; no outlet end effect is
-    modelled, the producer takes fluids at the cell's mobility ratio)."""
-    kw = dict(cells=100, profile_pvi=[0.3])
+    modelled, the producer takes fluids at the cell's mobility ratio). Same time stepping on both
+    sides, so the implicit scheme's own time smearing cannot pass for capillarity."""
+    kw = dict(cells=100, profile_pvi=[0.3], time_stepping=stepping)
     base = crosscheck_case(demo_case, **kw)
     wet = crosscheck_case(demo_case, capillary=BrooksCoreyCapillary(3.0, 2.0, demo_case.swc, demo_case.sor), **kw)
 
@@ -147,3 +149,76 @@ def test_errors_name_field_and_range(demo_case):
         q = np.zeros(10)
         q[0] = 1.0
         simulate_two_phase(g, demo_case.relperm, 1.0, 1.0, 0.2, q, 1.0)
+
+
+def test_implicit_stepping_agrees_with_explicit_under_capillarity(demo_case):
+    """Backward Euler (Newton) against the verified explicit IMPES run, strong-enough capillarity:
+    same breakthrough, recovery and profiles to the accuracy of first-order time stepping, in far
+    fewer steps (the explicit step is bound by Δt ~ Δx², Aziz & Settari 1979 Ch. 9)."""
+    cap = BrooksCoreyCapillary(20.0, 2.0, demo_case.swc, demo_case.sor)
+    ex = crosscheck_case(demo_case, cells=100, capillary=cap, time_stepping="explicit")
+    im = crosscheck_case(demo_case, cells=100, capillary=cap)  # auto: implicit with capillarity
+    assert im.time_stepping == "implicit" and ex.time_stepping == "explicit"
+    assert im.breakthrough_pvi_numerical == pytest.approx(ex.breakthrough_pvi_numerical, abs=0.005)
+    assert im.recovery_factor_at_2pvi_numerical == pytest.approx(ex.recovery_factor_at_2pvi_numerical, abs=0.002)
+    assert np.mean(np.abs(im.numerical_profiles - ex.numerical_profiles)) < 0.01
+    assert im.steps * 10 < ex.steps
+
+
+def test_implicit_stepping_converges_to_buckley_leverett(demo_case):
+    """No capillarity: the implicit solution also converges to the analytic one [BL1942, WELGE1952]."""
+    runs = [crosscheck_case(demo_case, cells=n, include_gravity=False, time_stepping="implicit")
+            for n in (50, 100, 200)]
+    errors = [r.l1_profile_difference for r in runs]
+    assert all(b < a for a, b in zip(errors, errors[1:]))
+    r = runs[-1]
+    assert r.recovery_factor_at_2pvi_numerical == pytest.approx(r.recovery_factor_at_2pvi_analytic, rel=0.01)
+
+
+def test_implicit_mass_balance_is_exact(demo_case):
+    """Injected = produced + change in water in place, with capillarity and gravity (conservation)."""
+    n = 60
+    g = CartesianGrid(n, 1, 1.0 / n, 1.0)
+    q = np.zeros(n)
+    q[0], q[-1] = 1.0, -1.0
+    cap = BrooksCoreyCapillary(0.5, 2.0, demo_case.swc, demo_case.sor)
+    run = simulate_two_phase(g, demo_case.relperm, demo_case.mu_w, demo_case.mu_o, demo_case.swi, q, 1.5,
+                             elevation=(np.arange(n) + 0.5) / n, gravity_gradient=0.3, capillary=cap,
+                             time_stepping="implicit")
+    water_gain = (run.average_saturation[-1] - demo_case.swi) * run.pore_volume
+    assert run.injected[-1] - run.water_produced[-1] == pytest.approx(water_gain, rel=1e-8)
+
+
+def test_time_stepping_errors(demo_case):
+    g = CartesianGrid(4, 4, 0.25, 0.25)
+    q = np.zeros(16)
+    q[0], q[-1] = 1.0, -1.0
+    with pytest.raises(FloodInputError, match=r"numerical.time_stepping = 'implicit': explicit on a 2D grid"):
+        simulate_two_phase(g, demo_case.relperm, 1.0, 1.0, 0.2, q, 0.1, time_stepping="implicit")
+    with pytest.raises(FloodInputError, match=r"time_stepping = 'newton': one of auto, explicit, implicit"):
+        crosscheck_case(demo_case, cells=20, time_stepping="newton")
+
+
+def test_implicit_converges_to_explicit_as_the_step_shrinks(demo_case, monkeypatch):
+    """Same space discretisation, capillarity on: the backward-Euler profile approaches the explicit
+    one (whose step is tiny here, bound by capillary diffusion) at first order in the step
+    (common practice for backward Euler)."""
+    import flood.numerical.implicit_chain as ic
+
+    n = 100
+    g = CartesianGrid(n, 1, 1.0 / n, 1.0)
+    q = np.zeros(n)
+    q[0], q[-1] = 1.0, -1.0
+    scale = capillary_scale_for_case(demo_case)
+    cap = BrooksCoreyCapillary(20.0, 2.0, demo_case.swc, demo_case.sor)
+    kw = dict(capillary=cap, capillary_scale=scale, report_times=[0.3])
+    args = (g, demo_case.relperm, demo_case.mu_w, demo_case.mu_o, demo_case.swi, q, 0.3)
+    reference = simulate_two_phase(*args, **kw).report_saturations[0]
+    diffs = []
+    for target, courant in ((0.05, 5.0), (0.01, 1.0), (0.002, 0.3)):
+        monkeypatch.setattr(ic, "TARGET_DS", target)
+        monkeypatch.setattr(ic, "MAX_COURANT", courant)
+        run = simulate_two_phase(*args, time_stepping="implicit", **kw)
+        diffs.append(float(np.mean(np.abs(run.report_saturations[0] - reference))))
+    assert diffs[0] > 2 * diffs[1] > 4 * diffs[2]
+    assert diffs[2] < 5e-4

@@ -377,7 +377,7 @@ def crosscheck_outputs(current, cells, entry_pressure, pore_index, gravity, prog
            f"{1000 * s['seconds_analytic']:.1f} ms). Breakthrough {s['breakthrough_pvi_numerical']:.3f} PV "
            f"(analytic {s['breakthrough_pvi_analytic']:.3f}); recovery at 2 PV {s['recovery_factor_at_2pvi_numerical']:.3f} "
            f"(analytic {s['recovery_factor_at_2pvi_analytic']:.3f}); mean L1 profile difference "
-           f"{s['l1_profile_difference']:.4f}; capillarity: {s['capillary']}.")
+           f"{s['l1_profile_difference']:.4f}; capillarity: {s['capillary']}; {s['time_stepping']} time stepping.")
     return figures.crosscheck_profiles_figure(check), figures.crosscheck_curve_figure(check), msg
 
 

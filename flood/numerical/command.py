@@ -85,7 +85,7 @@ def run_crosscheck(args) -> int:
     cap = _capillary_model(args, case)
     pvi = _float_list(args.pvi) if args.pvi else None
     result = crosscheck_case(case, cells=args.cells, capillary=cap, include_gravity=not args.no_gravity,
-                             profile_pvi=pvi, end_pvi=args.end_pvi)
+                             profile_pvi=pvi, end_pvi=args.end_pvi, time_stepping=args.time_stepping)
     summary = result.summary()
     if args.output:
         write_tables(args.output, {"curve": result.curve, "profiles": result.profiles_table(),
@@ -205,6 +205,8 @@ def register(subparsers) -> None:
     c.add_argument("--no-gravity", action="store_true", help="ignore the scenario's dip")
     c.add_argument("--pvi", help="PVIs of the compared profiles, comma-separated (default 0.5, 0.9, 1.5 x breakthrough)")
     c.add_argument("--end-pvi", type=float, default=None, help="last PVI (default max(2, scenario max_pvi))")
+    c.add_argument("--time-stepping", choices=("auto", "explicit", "implicit"), default="auto",
+                   help="auto (default): implicit with capillarity, explicit IMPES otherwise")
     c.add_argument("-o", "--output", help="write the curve: .csv, .json or .xlsx")
     c.set_defaults(handler=run_crosscheck)
     s = subparsers.add_parser("sweep", help="areal sweep of a repeated pattern (JSON)")

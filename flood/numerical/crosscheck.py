@@ -44,6 +44,9 @@ DEFAULT_PROFILE_FRACTIONS = (0.5, 0.9, 1.5)
 #: Allowed number of cells.
 CELL_RANGE = (10, 20_000)
 
+#: Time-stepping choices of the cross-check.
+TIME_STEPPING = ("auto", "explicit", "implicit")
+
 
 @dataclass(frozen=True)
 class CrosscheckResult:
@@ -79,6 +82,8 @@ class CrosscheckResult:
         Gravity term G used [cp].
     capillary : str
         Description of the capillary model, or "none".
+    time_stepping : str
+        "explicit" (IMPES) or "implicit" (backward Euler with Newton).
     """
 
     cells: int
@@ -98,6 +103,7 @@ class CrosscheckResult:
     steps: int
     gravity: float
     capillary: str
+    time_stepping: str = "explicit"
 
     @property
     def l1_profile_difference(self) -> float:
@@ -121,6 +127,7 @@ class CrosscheckResult:
             "time_steps": self.steps,
             "gravity_term_cp": self.gravity,
             "capillary": self.capillary,
+            "time_stepping": self.time_stepping,
         }
 
     def profiles_table(self) -> pd.DataFrame:
@@ -149,7 +156,7 @@ def _first_crossing(x, y, level):
 def crosscheck_1d(relperm, mu_w: float, mu_o: float, swi: float, *, cells: int = 400,
                   gravity: float = 0.0, capillary=None, capillary_scale: float = 1.0,
                   profile_pvi=None, end_pvi: float = 2.0, cfl: float = 0.9,
-                  progress=None) -> CrosscheckResult:
+                  progress=None, time_stepping: str = "auto") -> CrosscheckResult:
     """Solve a linear waterflood numerically and compare with Buckley-Leverett/Welge.
 
     Parameters
@@ -177,6 +184,14 @@ def crosscheck_1d(relperm, mu_w: float, mu_o: float, swi: float, *, cells: int =
         CFL safety factor of the IMPES step, 0 < cfl <= 1 [-].
     progress : callable, optional
         ``progress(fraction)``.
+    time_stepping : str
+        "auto" (implicit with capillarity, explicit IMPES otherwise), "explicit" or "implicit"
+        (backward Euler with Newton, :mod:`flood.numerical.implicit_chain`). With capillarity the
+        explicit step is bound by the capillary terms (demo, 200 cells, Pe = 20 psi: 127,000
+        steps, 14 s); the implicit one takes 1,500 steps (1.3 s) with breakthrough within 0.0005 PV,
+        recovery at 2 PVI within 0.0002 and profiles within 0.0005 (mean |ΔSw|) of the explicit
+        answer (measured; tested at Pe = 20 psi, 100 cells). With weak capillarity (Pe = 5 psi,
+        100 cells) the explicit run is the quicker one (1.3 s against 2.1 s).
 
     Returns
     -------
@@ -226,9 +241,13 @@ def crosscheck_1d(relperm, mu_w: float, mu_o: float, swi: float, *, cells: int =
     x = (np.arange(cells) + 0.5) * dx
     q = np.zeros(cells)
     q[0], q[-1] = 1.0, -1.0
+    if time_stepping not in TIME_STEPPING:
+        raise FloodInputError("time_stepping", time_stepping, "one of " + ", ".join(TIME_STEPPING))
+    if time_stepping == "auto":
+        time_stepping = "implicit" if capillary is not None else "explicit"
     run = simulate_two_phase(grid, relperm, mu_w, mu_o, swi, q, end_pvi, elevation=x,
                              gravity_gradient=gravity, capillary=capillary, capillary_scale=capillary_scale,
-                             report_times=profile_pvi, cfl=cfl, progress=progress)
+                             report_times=profile_pvi, cfl=cfl, progress=progress, time_stepping=time_stepping)
     order = np.argsort(profile_pvi)
     num = np.empty((profile_pvi.size, cells))
     num[order] = run.report_saturations
@@ -254,7 +273,7 @@ def crosscheck_1d(relperm, mu_w: float, mu_o: float, swi: float, *, cells: int =
         recovery_factor_at_2pvi_numerical=float(np.interp(2.0, pvi, rf_num)),
         recovery_factor_at_2pvi_analytic=rf_an_2,
         seconds_numerical=run.seconds, seconds_analytic=seconds_an, steps=run.steps,
-        gravity=float(gravity), capillary=cap_text)
+        gravity=float(gravity), capillary=cap_text, time_stepping=time_stepping)
 
 
 def capillary_scale_for_case(case) -> float:
@@ -288,7 +307,8 @@ def capillary_scale_for_case(case) -> float:
 
 
 def crosscheck_case(case, *, cells: int = 400, capillary=None, include_gravity: bool = True,
-                    profile_pvi=None, end_pvi: float | None = None, progress=None) -> CrosscheckResult:
+                    profile_pvi=None, end_pvi: float | None = None, progress=None,
+                    time_stepping: str = "auto") -> CrosscheckResult:
     """Cross-check a scenario (a :class:`flood.scenario.FloodCase`); see :func:`crosscheck_1d`.
 
     Parameters
@@ -301,7 +321,7 @@ def crosscheck_case(case, *, cells: int = 400, capillary=None, include_gravity: 
         Capillary pressure in psi.
     include_gravity : bool
         Use the scenario's gravity term (dip); False for horizontal flow.
-    profile_pvi, end_pvi, progress
+    profile_pvi, end_pvi, progress, time_stepping
         As for :func:`crosscheck_1d`; ``end_pvi`` defaults to max(2, the scenario's max PVI).
 
     Raises
@@ -316,4 +336,5 @@ def crosscheck_case(case, *, cells: int = 400, capillary=None, include_gravity: 
     scale = capillary_scale_for_case(case) if capillary is not None else 1.0
     return crosscheck_1d(case.relperm, case.mu_w, case.mu_o, case.swi, cells=cells,
                          gravity=case.gravity if include_gravity else 0.0, capillary=capillary,
-                         capillary_scale=scale, profile_pvi=profile_pvi, end_pvi=end, progress=progress)
+                         capillary_scale=scale, profile_pvi=profile_pvi, end_pvi=end, progress=progress,
+                         time_stepping=time_stepping)

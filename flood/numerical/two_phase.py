@@ -193,6 +193,61 @@ class PressureSolver:
         return p
 
 
+class StepLog:
+    """Per-step bookkeeping shared by the explicit and the implicit stepping.
+
+    Keeps the step times, cumulative water produced, producer water fraction and mean saturation;
+    copies the saturation at the report times (which the steppers land on exactly, see
+    :meth:`next_report`); reports progress and asks the ``stop`` callback after each step.
+    """
+
+    def __init__(self, sw, pv, report_times, end_time, progress=None, stop=None):
+        self.pv, self.pv_total = pv, float(pv.sum())
+        times = np.asarray(report_times, dtype=float)
+        self.reports = np.sort(times[(times > 0) & (times <= end_time)])
+        self.report_out = [sw.copy() for _ in times[times <= 0]]
+        self.kept = [0.0 for _ in times[times <= 0]]
+        self.ri = 0
+        self.times, self.wprod, self.fwp = [0.0], [0.0], [np.nan]
+        self.savg = [float(pv @ sw) / self.pv_total]
+        self.end_time, self.progress, self.stop = end_time, progress, stop
+        self.next_progress = 0.01
+
+    def next_report(self) -> float:
+        """The next report time still to land on (inf when none is left)."""
+        return float(self.reports[self.ri]) if self.ri < self.reports.size else np.inf
+
+    def record(self, t, sw, cum_w, f_now) -> bool:
+        """Log the state after a step ending at ``t``; True when ``stop`` asks to end the run."""
+        self.times.append(t)
+        self.wprod.append(cum_w)
+        self.fwp.append(f_now)
+        self.savg.append(float(self.pv @ sw) / self.pv_total)
+        while self.ri < self.reports.size and t >= self.reports[self.ri] * (1 - 1e-12):
+            self.report_out.append(sw.copy())
+            self.kept.append(float(self.reports[self.ri]))
+            self.ri += 1
+        if self.progress is not None and t >= self.next_progress * self.end_time:
+            self.progress(min(t / self.end_time, 1.0))
+            self.next_progress = t / self.end_time + 0.01
+        return self.stop is not None and bool(self.stop(t, sw, f_now))
+
+    def run(self, sw, total_injection, total_production, steps, pressure_solves, t0) -> TwoPhaseRun:
+        """The finished :class:`TwoPhaseRun`."""
+        times = np.asarray(self.times)
+        wprod = np.asarray(self.wprod)
+        fwp = self.fwp
+        fwp[0] = fwp[1] if len(fwp) > 1 else np.nan
+        if self.progress is not None:
+            self.progress(1.0)
+        return TwoPhaseRun(time=times, injected=times * total_injection, water_produced=wprod,
+                           oil_produced=times * total_production - wprod, producer_fw=np.asarray(fwp),
+                           average_saturation=np.asarray(self.savg), report_times=np.asarray(self.kept),
+                           report_saturations=np.asarray(self.report_out).reshape(len(self.report_out), sw.size),
+                           final_saturation=sw, pore_volume=self.pv_total, steps=steps,
+                           pressure_solves=pressure_solves, seconds=_time.perf_counter() - t0)
+
+
 def _sample_bounds(relperm, mu_w, mu_o):
     """Largest saturation derivatives of the flux functions, for the CFL bound.
 
@@ -214,7 +269,7 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
                        well_rates, end_time: float, *, elevation=None, gravity_gradient: float = 0.0,
                        capillary=None, capillary_scale: float = 1.0, report_times=(),
                        cfl: float = 0.9, stop=None, progress=None,
-                       pressure_update_ds: float | None = None,
+                       pressure_update_ds: float | None = None, time_stepping: str = "explicit",
                        max_steps: int = 5_000_000) -> TwoPhaseRun:
     """Run the IMPES two-phase solver from an initial saturation to ``end_time``.
 
@@ -257,6 +312,10 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
         the held total flux. Default 0.05 [fraction]. On a chain (1D grid) without gravity and
         capillarity the total flux is fixed by the well rates, so the pressure is solved once and
         this setting is not needed.
+    time_stepping : str
+        "explicit" (IMPES, the default) or "implicit" (backward Euler with Newton, chains of cells
+        only: see :mod:`flood.numerical.implicit_chain`; for strong capillarity, where the explicit
+        step is bound by Δt ~ Δx²). ``cfl`` and ``pressure_update_ds`` do not apply to it.
     max_steps : int
         Safety limit on the number of steps.
 
@@ -338,20 +397,28 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
     total_production = float(-qneg.sum())
     has_extra = capillary is not None or bool(np.any(gz != 0.0))
     solver = PressureSolver(grid)
+    if time_stepping not in ("explicit", "implicit"):
+        raise FloodInputError("numerical.time_stepping", time_stepping, "explicit or implicit")
+    if time_stepping == "implicit":
+        if not solver.chain:
+            raise FloodInputError("numerical.time_stepping", "implicit", "explicit on a 2D grid",
+                                  "the implicit stepping is for chains of cells (1D)")
+        from .implicit_chain import simulate_chain_implicit
+
+        log = StepLog(sw, pv, report_times, end_time, progress, stop)
+        sw, steps = simulate_chain_implicit(grid, relperm, mu_w, mu_o, sw, q, end_time, log, z=z,
+                                            gravity_gradient=gravity_gradient, capillary=capillary,
+                                            capillary_scale=capillary_scale, max_steps=max_steps)
+        return log.run(sw, total_injection, total_production, steps, 0, t0)
     # On a chain of cells without gravity and capillarity the total flux on every face is fixed by
     # the well rates alone (div of the flux equals q), so one pressure solve gives it for the run.
     fixed_flux = solver.chain and not has_extra
-    reports = np.sort(np.asarray([r for r in report_times if 0 < r <= end_time], dtype=float))
-    report_out = [sw.copy() for r in np.asarray(report_times, dtype=float) if r <= 0]
-    kept_times = [0.0 for r in np.asarray(report_times, dtype=float) if r <= 0]
-    ri = 0
+    log = StepLog(sw, pv, report_times, end_time, progress, stop)
     up_w = np.ones(fl.size, dtype=bool)
     up_o = np.ones(fl.size, dtype=bool)
     idx_w = idx_o = fl
     t = 0.0
-    times, injected, wprod, fwp, savg = [0.0], [0.0], [0.0], [np.nan], [float(pv @ sw) / pv_total]
     cum_w = 0.0
-    next_progress = 0.01
     steps = 0
     end = end_time * (1 - 1e-12)
     sw_solved = None
@@ -427,8 +494,9 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
                 rate = rate + touch(cap)
             dt_stable = cfl / float(np.max(rate / pv))
         dt = dt_stable
-        if ri < reports.size and t + dt >= reports[ri] * (1 - 1e-12):
-            dt = reports[ri] - t
+        landing = log.next_report()
+        if t + dt >= landing * (1 - 1e-12):
+            dt = landing - t
         if t + dt > end_time:
             dt = end_time - t
         # Sw += Δt (qinj + qprod fw - div Fw) / Vp, in place; then kept within [0, 1]
@@ -447,30 +515,6 @@ def simulate_two_phase(grid: CartesianGrid, relperm, mu_w: float, mu_o: float, s
         rate_w = -float(q_producers @ fcell.take(producers))
         cum_w += dt * rate_w
         f_now = rate_w / total_production if total_production > 0 else np.nan
-        times.append(t)
-        wprod.append(cum_w)
-        fwp.append(f_now)
-        savg.append(float(pv @ sw) / pv_total)
-        while ri < reports.size and t >= reports[ri] * (1 - 1e-12):
-            report_out.append(sw.copy())
-            kept_times.append(float(reports[ri]))
-            ri += 1
-        if progress is not None and t >= next_progress * end_time:
-            progress(min(t / end_time, 1.0))
-            next_progress = t / end_time + 0.01
-        if stop is not None and stop(t, sw, f_now):
+        if log.record(t, sw, cum_w, f_now):
             break
-    times = np.asarray(times)
-    injected = times * total_injection
-    wprod = np.asarray(wprod)
-    oprod = times * total_production - wprod
-    fwp[0] = fwp[1] if len(fwp) > 1 else np.nan
-    if progress is not None:
-        progress(1.0)
-    return TwoPhaseRun(time=np.asarray(times), injected=np.asarray(injected),
-                       water_produced=np.asarray(wprod), oil_produced=np.asarray(oprod),
-                       producer_fw=np.asarray(fwp), average_saturation=np.asarray(savg),
-                       report_times=np.asarray(kept_times),
-                       report_saturations=np.asarray(report_out).reshape(len(report_out), n),
-                       final_saturation=sw, pore_volume=pv_total, steps=steps,
-                       pressure_solves=solver.solves, seconds=_time.perf_counter() - t0)
+    return log.run(sw, total_injection, total_production, steps, solver.solves, t0)
